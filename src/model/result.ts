@@ -1,0 +1,124 @@
+// The result file written by every solving command (`-o result.json`) and read by
+// report / fabricate / tracks / play. Keys `tube`, `rings`, `status`, `aspectRatio` are Contract.
+import type { Lattice, SolveStatus, Symmetry, Vec3 } from './types.js';
+
+export const RESULT_FORMAT = 'thickring-result/1';
+
+export interface ResultRing {
+  name: string;
+  center: Vec3;
+  normal: Vec3;
+  /** Core radius R (layout units). */
+  radius: number;
+  /** This ring's tube radius r_i = tube * tubeRatio_i (layout units). */
+  tube: number;
+  /** Inner diameter / wire diameter = (R - r) / r. */
+  aspectRatio: number;
+}
+
+/** One active strut at the optimum: a local closest pair between rings a and b. */
+export interface ResultContact {
+  a: number;
+  b: number;
+  onA: Vec3;
+  onB: Vec3;
+  /** Core-to-core distance of the pair (layout units). */
+  distance: number;
+  /** Non-negative strut force from the certificate (dimensionless, sum normalised to 1). */
+  force: number;
+  /** True when the pair touches along a continuum and this is one representative point. */
+  continuum?: boolean;
+}
+
+export interface Certificate {
+  /** 'kkt-nnls': strut forces by non-negative least squares on the balance equations. */
+  method: string;
+  /** Residual of the balance equations divided by the largest force term (dimensionless). */
+  balanceResidual: number;
+  /** Worst constraint violation after polishing, relative to the tube radius. */
+  maxViolation: number;
+  activeStruts: number;
+  /** True when the balance residual and violation are under tolerance. */
+  certified: boolean;
+  /** Free text that says what was proved and what was not. */
+  note: string;
+}
+
+export interface Bound {
+  /** Upper bound on the common tube radius from circle packing in a circle (layout units). */
+  tube: number;
+  /** Index of the ring that gives the bound, and how many rings pass through it. */
+  ring: number;
+  through: number;
+  /** (bound - tube) / bound; 0 means the bound is attained. */
+  gap: number;
+}
+
+export interface StartRecord {
+  seed: number;
+  status: SolveStatus;
+  tube: number;
+  iterations: number;
+  /** Tube radius after each outer iteration. */
+  history: number[];
+  /** Worker crashes survived by this start (WebAssembly aborts). */
+  retries: number;
+}
+
+export interface Verification {
+  ok: boolean;
+  /** min over pairs of (sampled core distance - r_i - r_j), relative to the tube. */
+  minClearance: number;
+  linkingPreserved: boolean;
+  tubeWithinRadius: boolean;
+  messages: string[];
+}
+
+export interface SolveResult {
+  format: typeof RESULT_FORMAT;
+  command: string;
+  spec: string;
+  units: string | null;
+  status: SolveStatus;
+  tube: number;
+  /** Common tube radius over the smallest core radius. */
+  tubeOverCore: number;
+  aspectRatio: number;
+  tubeRatios: number[];
+  rings: ResultRing[];
+  linking: number[][];
+  symmetry: Symmetry | null;
+  lattice?: Lattice;
+  contacts: ResultContact[];
+  certificate: Certificate;
+  bound: Bound | null;
+  starts: StartRecord[];
+  verification: Verification;
+  elapsedSeconds: number;
+}
+
+/** Symmetric vs symmetry-broken comparison (`thickring compare`). */
+export interface CompareRingChange {
+  name: string;
+  /** Centre displacement between the two optima after best rigid alignment (layout units). */
+  displacement: number;
+  /** Angle between the ring normals (degrees, axis direction ignored). */
+  tiltDegrees: number;
+}
+
+export interface SweepPoint {
+  /** Allowed departure from symmetry (layout units: bound on the distance to the symmetrised copy). */
+  epsilon: number;
+  tube: number;
+  status: SolveStatus;
+}
+
+export interface CompareResult extends SolveResult {
+  /** The main `tube`, `rings`, ... of a compare result are those of the symmetry-broken optimum. */
+  symmetric: SolveResult;
+  broken: SolveResult;
+  gain: number;
+  gainPercent: number;
+  changes: CompareRingChange[];
+  sweep: SweepPoint[];
+}
