@@ -1,5 +1,45 @@
-// Placeholder until the catalog command lands; its owner replaces this file.
+// `thickring catalog [--json]`: the named links that inflate and compare accept as SPEC.
 import type { Command } from 'commander';
-import type { Io } from './io.js';
+import { catalogEntries, MAX_CATALOG_RINGS, type CatalogEntry } from '../src/model/catalog.js';
+import { emit, type Io } from './io.js';
 
-export function register(_program: Command, _io: Io): void {}
+export interface CatalogListing {
+  entries: CatalogEntry[];
+  maxRings: number;
+  /** The frame the symmetries refer to. */
+  axis: string;
+}
+
+export function register(program: Command, io: Io): void {
+  program
+    .command('catalog')
+    .description('List the catalogue of named links (specs for inflate and compare), their symmetry and known optima.')
+    .option('--json', 'print one JSON object instead of text')
+    .action((opts: { json?: boolean }) => {
+      const listing: CatalogListing = {
+        entries: catalogEntries(),
+        maxRings: MAX_CATALOG_RINGS,
+        axis: 'symmetries are about the z axis through the origin; dihedral 2-fold axes include the x axis',
+      };
+      emit(io, opts.json === true, listing, () => formatCatalog(listing));
+    });
+}
+
+export function formatCatalog(listing: CatalogListing): string {
+  const lines: string[] = ['Catalogue of links of round rings (core radius R, 1 layout unit unless --radii is given)', ''];
+  for (const e of listing.entries) {
+    lines.push(`${e.spec}  (e.g. ${e.example})`);
+    lines.push(`  ${e.description}`);
+    lines.push(`  rings: ${e.rings}; linked pairs: ${e.linking}`);
+    lines.push(`  natural symmetry of the start: ${e.symmetry}`);
+    lines.push(
+      e.knownOptimum
+        ? `  known optimum: tube = ${e.knownOptimum.formula} (tube / core radius ${Number(e.knownOptimum.tubeOverCore.toPrecision(6))}, dimensionless); ${e.knownOptimum.source}`
+        : '  known optimum: none published',
+    );
+    lines.push('');
+  }
+  lines.push(`Counts N, K run up to ${listing.maxRings}. Note: ${listing.axis}.`);
+  lines.push('Round rings cannot form the Borromean rings or any link whose pairs are all unlinked (Freedman & Skora 1987).');
+  return lines.join('\n');
+}

@@ -1,5 +1,222 @@
-// Placeholder until the inflate command lands; its owner replaces this file.
+// `thickring inflate SPEC|LAYOUT [--json] [-o result.json]`: the thickest common tube the rings allow,
+// with the poses, contacts and strut forces, the optimality certificate, the packing bound and an
+// independent check of the answer.
+import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
-import type { Io } from './io.js';
+import { knownOptimum } from '../src/model/catalog.js';
+import type { SolveResult } from '../src/model/result.js';
+import { resolveSpec } from '../src/model/spec.js';
+import { runMultistart, type StartProgress } from '../src/optimize/multistart.js';
+import type { InflateProblem } from '../src/optimize/problem.js';
+import { writeFileAtomic } from './files.js';
+import { emit, type Io } from './io.js';
+import { addSolveOptions, readSolveOptions, resolveSymmetry, type SolveCliOptions } from './options.js';
 
-export function register(_program: Command, _io: Io): void {}
+export interface InflateRun {
+  result: SolveResult;
+  /** Lines for the human text: where the symmetry came from, the known optimum, tube ratios. */
+  notes: string[];
+}
+
+export function register(program: Command, io: Io): void {
+  const cmd = program
+    .command('inflate')
+    .description('Thicken the rings as far as they allow: common tube radius, poses, contacts, certificate and bound.')
+    .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N; see thickring catalog) or layout JSON file')
+    .option('--json', 'print one JSON object (the result file) instead of text')
+    .option('-o, --output <file>', 'write the result file (format thickring-result/1)');
+  addSolveOptions(cmd).action(async (arg: string, raw: Record<string, unknown>) => {
+    const options = readSolveOptions(raw);
+    const json = raw['json'] === true;
+    const run = await runInflate(arg, options, io);
+    const output = raw['output'] as string | undefined;
+    if (output !== undefined) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
+    emit(io, json, run.result, () => formatInflate(run, output));
+    if (run.result.status === 'failed' || run.result.status === 'infeasible') {
+      throw new Error(`no verified configuration (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
+    }
+    if (run.result.status === 'stalled') {
+      io.err('thickring: warning: the solve stalled before the certificate held; the tube is feasible (checked) but may not be the largest');
+    }
+  });
+}
+
+/** Resolve the spec, solve with multistart on the worker pool, and collect notes for the text. */
+export async function runInflate(arg: string, options: SolveCliOptions, io: Io): Promise<InflateRun> {
+  const resolved = resolveSpec(arg, options.radii ? { radii: options.radii } : {});
+  const layout = resolved.layout;
+  const symmetry = resolveSymmetry(options.symmetry, layout);
+  const notes: string[] = [];
+  if (options.symmetry === undefined && symmetry) {
+    notes.push(`Symmetry ${symmetry.type}:${symmetry.order} imposed from the layout file (override with --symmetry none).`);
+  }
+  const tubeRatios = ratiosOf(layout.rings.map((r) => r.tube), notes);
+  const problem: InflateProblem = {
+    rings: layout.rings.map(({ tube: _t, ...r }) => r),
+    tubeRatios,
+    linking: resolved.linking,
+    symmetry,
+  };
+  const progress = progressReporter(io, options.starts);
+  let result: SolveResult;
+  try {
+    result = await runMultistart(problem, {
+      starts: options.starts,
+      workers: options.workers,
+      seed: options.seed,
+      tol: options.tol,
+      spec: resolved.spec,
+      command: 'inflate',
+      units: layout.units ?? null,
+      onProgress: progress.update,
+    });
+  } finally {
+    progress.stop();
+  }
+  const known = resolved.catalog ? knownOptimum(resolved.catalog) : null;
+  const equalRadii = layout.rings.every((r) => r.radius === layout.rings[0]!.radius);
+  if (known && equalRadii && tubeRatios.every((w) => w === 1)) {
+    const R = layout.rings[0]!.radius;
+    const ref = known.tubeOverCore * R;
+    const rel = (result.tube - ref) / ref;
+    notes.push(`Known optimum ${known.formula} = ${num(ref)} ${unitsOf(result)}; this result differs by ${sci(rel)} (relative, dimensionless). Source: ${known.source}.`);
+  }
+  return { result, notes };
+}
+
+/** Human-readable result; every length carries its units, every ratio says dimensionless. */
+export function formatInflate(run: InflateRun, output?: string): string {
+  const r = run.result;
+  const u = unitsOf(r);
+  const L = (x: number): string => `${num(x)} ${u}`;
+  const lines: string[] = [];
+  lines.push(`thickring inflate ${r.spec}: ${r.rings.length} rings, lengths in ${u}`);
+  lines.push(`Status: ${r.status}${r.certificate.certified ? ' (certified optimum)' : ''}`);
+  lines.push(`Tube radius: ${L(r.tube)} (wire diameter ${L(2 * r.tube)})`);
+  lines.push(`Tube / smallest core radius: ${num(r.tubeOverCore)} (dimensionless)`);
+  lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(r.aspectRatio)} (dimensionless)`);
+  if (r.symmetry) lines.push(`Symmetry imposed: ${r.symmetry.type}:${r.symmetry.order} about axis [${r.symmetry.axis.join(', ')}] through [${r.symmetry.origin.join(', ')}]`);
+  else lines.push('Symmetry imposed: none');
+  if (r.bound) {
+    const b = r.bound;
+    lines.push(
+      `Upper bound (circle packing): ${L(b.tube)}; ring ${r.rings[b.ring]?.name ?? b.ring} has ${b.through} ring${b.through === 1 ? '' : 's'} through it; ` +
+        `gap (bound - tube) / bound = ${sci(b.gap)} (dimensionless)`,
+    );
+  }
+  const c = r.certificate;
+  lines.push(
+    `Certificate: ${c.method}, ${c.certified ? 'certified' : 'NOT certified'}; balance residual ${sci(c.balanceResidual)}, ` +
+      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}`,
+  );
+  if (c.note) lines.push(`  ${c.note}`);
+  const v = r.verification;
+  lines.push(
+    `Independent check: ${v.ok ? 'passed' : 'FAILED'}; min clearance ${sci(v.minClearance)} of the tube (dimensionless); ` +
+      `linking ${v.linkingPreserved ? 'preserved' : 'NOT preserved'}; tube ${v.tubeWithinRadius ? '<=' : 'EXCEEDS'} core radius`,
+  );
+  for (const m of v.messages) lines.push(`  ${m}`);
+  for (const n of run.notes) lines.push(n);
+  lines.push('');
+  lines.push('Rings');
+  lines.push(table(
+    ['name', `centre (${u})`, 'normal (unit)', `core R (${u})`, `tube r (${u})`, 'aspect ratio (dimensionless)'],
+    r.rings.map((x) => [x.name, vec(x.center), vec(x.normal), num(x.radius), num(x.tube), num(x.aspectRatio)]),
+  ));
+  if (r.contacts.length > 0) {
+    lines.push('');
+    lines.push('Contacts (active struts; forces dimensionless, summing to 1)');
+    lines.push(table(
+      ['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''],
+      r.contacts.map((x) => [
+        `${r.rings[x.a]?.name ?? x.a}-${r.rings[x.b]?.name ?? x.b}`,
+        vec(x.onA), vec(x.onB), num(x.distance), num(x.force), x.continuum ? 'continuum representative' : '',
+      ]),
+    ));
+  }
+  lines.push('');
+  lines.push('Starts');
+  lines.push(table(
+    ['start', 'seed', 'status', `tube (${u})`, 'iterations', 'worker crashes retried'],
+    r.starts.map((s, k) => [String(k), String(s.seed), s.status, num(s.tube), String(s.iterations), String(s.retries)]),
+  ));
+  lines.push('');
+  lines.push(`Elapsed: ${r.elapsedSeconds.toFixed(2)} s`);
+  if (output) lines.push(`Result written to ${output}`);
+  lines.push('');
+  lines.push('Cautions:');
+  lines.push('- The tube radius is a geometric limit with zero clearance: real rings need clearance (see thickring fabricate).');
+  lines.push('- Geometry says nothing about strength: do not use these figures for load-bearing, lifting or climbing chain.');
+  lines.push('- Small rings are a choking hazard for children; for skin contact use skin-safe (e.g. nickel-free) materials.');
+  return lines.join('\n');
+}
+
+// ---- helpers -------------------------------------------------------------------------------------
+
+/** Layout tubes, when they differ, are ratios r_i = tube · tube_i / largest tube_i (as in measure). */
+function ratiosOf(tubes: (number | undefined)[], notes: string[]): number[] {
+  const given = tubes.filter((t): t is number => t !== undefined);
+  const maxT = given.length > 0 ? Math.max(...given) : 0;
+  if (!given.some((t) => t !== maxT)) return tubes.map(() => 1);
+  notes.push('Rings carry different tube values: they are used as ratios (r_i = tube * tube_i / largest tube_i), not as sizes.');
+  return tubes.map((t) => (t === undefined ? 1 : t / maxT));
+}
+
+interface Progress {
+  update: (e: StartProgress) => void;
+  stop: () => void;
+}
+
+/** A bar on an interactive stderr, else one line per finished start. */
+function progressReporter(io: Io, total: number): Progress {
+  if (io.interactive) {
+    const bar = new cliProgress.SingleBar(
+      { format: 'inflate [{bar}] {value}/{total} starts | best tube {best}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
+      cliProgress.Presets.shades_classic,
+    );
+    bar.start(total, 0, { best: '-' });
+    return {
+      update: (e) => {
+        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : num(e.bestTube) });
+        for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
+      },
+      stop: () => bar.stop(),
+    };
+  }
+  return {
+    update: (e) => {
+      for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
+      io.err(
+        `start ${e.start} (${e.done}/${e.total}, seed ${e.seed}): ${e.status}, tube ${Number.isNaN(e.tube) ? '-' : num(e.tube)}` +
+          `${e.retries ? `, ${e.retries} worker crash${e.retries > 1 ? 'es' : ''} retried` : ''}; best ${Number.isNaN(e.bestTube) ? '-' : num(e.bestTube)} (layout units)`,
+      );
+    },
+    stop: () => {},
+  };
+}
+
+function unitsOf(r: SolveResult): string {
+  return r.units ?? 'layout units';
+}
+
+function num(x: number): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (x === 0) return '0';
+  return String(Number(x.toPrecision(10)));
+}
+
+function sci(x: number): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (x === 0) return '0';
+  return x.toExponential(2);
+}
+
+function vec(v: readonly number[]): string {
+  return v.map((x) => String(Number(x.toPrecision(6)))).join(', ');
+}
+
+function table(head: string[], rows: string[][]): string {
+  const w = head.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k]!.length)));
+  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
+  return [line(head), ...rows.map(line)].join('\n');
+}

@@ -1,5 +1,82 @@
-// Placeholder until the play command lands; its owner replaces this file.
+// `thickring play RESULT [--tube R] [--cap N] [--json]`: locked or rattling? First-order mobility,
+// the second-order test at a claimed optimum, and how far each ring can move on its own.
 import type { Command } from 'commander';
-import type { Io } from './io.js';
+import { analyzePlay, fmt, type PlayReport } from '../src/analyze/play.js';
+import { InputError } from '../src/model/errors.js';
+import { readResultFile } from '../src/model/resultFile.js';
+import { emit, type Io } from './io.js';
 
-export function register(_program: Command, _io: Io): void {}
+export function register(program: Command, io: Io): void {
+  program
+    .command('play')
+    .description('Locked or rattling? Free motions of the rings at their contacts, the second-order test, and each ring\'s play.')
+    .argument('<result>', 'result JSON file (format thickring-result/1, from inflate or compare -o)')
+    .option('--tube <r>', 'common tube radius to analyse, layout units (default: the result\'s own); e.g. the printed wire after clearance')
+    .option('--cap <n>', 'largest translation searched per direction, layout units (default: 4 x the largest core radius)')
+    .option('--json', 'print one JSON object instead of text')
+    .action(async (file: string, opts: { tube?: string; cap?: string; json?: boolean }) => {
+      const result = readResultFile(file);
+      const tube = opts.tube === undefined ? undefined : positive(opts.tube, '--tube', 'a tube radius in layout units, e.g. --tube 0.3');
+      const cap = opts.cap === undefined ? undefined : positive(opts.cap, '--cap', 'a distance in layout units, e.g. --cap 5');
+      const report = await analyzePlay(result, {
+        ...(tube !== undefined ? { tube } : {}),
+        ...(cap !== undefined ? { translationCap: cap } : {}),
+      });
+      emit(io, opts.json === true, report, () => formatPlay(report, file));
+    });
+}
+
+/** Human-readable report; lengths carry the result's units, angles degrees. */
+export function formatPlay(r: PlayReport, file: string): string {
+  const u = r.units ?? 'layout units';
+  const lines: string[] = [];
+  lines.push(`Play of ${file} (${r.spec}, ${r.rings.length} rings, solve status ${r.status})`);
+  lines.push(`Tube analysed: ${fmt(r.tube)} ${u} (the result's: ${fmt(r.resultTube)} ${u}); aspect ratio of the result ${fmt(r.aspectRatio)} (dimensionless)`);
+  const verdict = r.locked
+    ? `LOCKED except for spins (${r.lockedBy === 'first-order' ? 'no first-order motion' : 'every first-order motion closes a contact at second order'})`
+    : r.secondOrder.escape
+      ? 'NOT LOCKED: a motion opens every contact, so the rings can be made thicker'
+      : 'NOT LOCKED: the rings can move';
+  lines.push(`Verdict: ${verdict}`);
+  lines.push(`Active contacts: ${r.mobility.activeContacts} (clearance <= ${fmt(r.mobility.activeTol)} ${u})` +
+    (r.mobility.continua.length > 0
+      ? `; touching along whole circles: ${r.mobility.continua.map((c) => `${c.a}-${c.b} (${c.kind}, ${c.samples} samples on ${c.sampledRing})`).join(', ')}`
+      : ''));
+  lines.push(`First-order free motions beyond spins and moving the whole set: ${r.freeDimension} (${r.reversibleDimension} reversible) (dimensionless count)`);
+  for (const m of r.freeMotions) lines.push(`  - ${m.description}`);
+  lines.push(`Second order: ${r.secondOrder.outcome} — ${r.secondOrder.detail}`);
+  if (r.secondOrder.direction) lines.push(`  direction: ${r.secondOrder.direction.description}`);
+  if (r.secondOrder.thickenedTube !== null) {
+    lines.push(`  following it reaches a common tube of ${fmt(r.secondOrder.thickenedTube)} ${u} (from ${fmt(r.tube)} ${u})`);
+  }
+  lines.push('');
+  lines.push(`Play of each ring alone, others held still, at tube ${fmt(r.play.tube)} ${u} (translations in ${u}, turns in degrees; spin is always free; ">" = free beyond the cap)`);
+  const head = ['ring', '+x', '-x', '+y', '-y', '+z', '-z', '+u°', '-u°', '+v°', '-v°', 'u axis', 'v axis'];
+  const rows = r.play.rings.map((ring) => [
+    ring.name,
+    ...ring.entries.map((e) => (e.capped ? `>${fmt(e.amount)}` : `${fmt(e.amount)}${e.budgetExhausted ? '+' : ''}`)),
+    vec(ring.axes.u),
+    vec(ring.axes.v),
+  ]);
+  lines.push(table(head, rows));
+  for (const n of r.notes) lines.push(`Note: ${n}`);
+  lines.push('Caution: play is geometric, for perfectly round rings of exact size; printed or bent rings shrink, sag and spring back.');
+  lines.push('Caution: rings that rattle can pinch skin or hair, and small loose parts are a choking hazard: keep them from children.');
+  return lines.join('\n');
+}
+
+function positive(text: string, flag: string, what: string): number {
+  const v = Number(text);
+  if (!Number.isFinite(v) || v <= 0) throw new InputError(`${flag} ${text} must be a number > 0: give ${what}`);
+  return v;
+}
+
+function vec(v: readonly number[]): string {
+  return `(${v.map((c) => c.toFixed(3)).join(', ')})`;
+}
+
+function table(head: string[], rows: string[][]): string {
+  const w = head.map((h, k) => Math.max(h.length, ...rows.map((row) => row[k]!.length)));
+  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
+  return [line(head), ...rows.map(line)].join('\n');
+}

@@ -1,10 +1,48 @@
-// API under construction; the implementation lands with the kernel issue.
+/**
+ * Exact distance between two circles in 3D, with every local closest pair ("strut").
+ *
+ * Method. Parametrise A by s: A(s) = cA + RA (e1 cos s + e2 sin s). By Eberly's point–circle formula
+ * ("Distance to Circles in 3D", Geometric Tools 2015/2021) the nearest point of B to A(s) is unique unless
+ * A(s) lies on B's axis, so the local minima of the pair distance |A(s) - B(t)| are exactly the local
+ * minima of f(s) = dist(A(s), B)^2 = p(s) - 2 RB rho(s) + RB^2, where p = |A(s) - cB|^2, z = nB.(A(s) - cB),
+ * w = rho^2 = p - z^2. Then f' = h / rho with h = p' rho - RB w', and
+ *     g = h (p' rho + RB w') = p'^2 w - RB^2 w'^2
+ * is a trigonometric polynomial of degree 4 — Neff's (1990) degree-8 polynomial in tan(s/2).
+ *
+ * Why this cannot miss a local minimum: every local minimum of f is a root of h, hence of g. All real roots
+ * of g on [0, 2π) are isolated by interval subdivision with certified bounds (a second-order Taylor bound with
+ * |g''| <= sum k^2 |c_k| excludes an interval; |g'(m)| > |g''|max * r proves at most one root, found by a sign
+ * change). Nothing is sampled, so a minimum is never skipped between samples; only double roots (a minimum
+ * being born) are resolved at the subdivision floor. Minima are the roots where h changes sign from - to +,
+ * read between neighbouring events; A's crossings of B's axis (cusp maxima of f) are added as events. The root
+ * with the smallest f is always reported, since the global minimum is a stationary point of f.
+ *
+ * Continua of closest pairs (f constant): coaxial circles, and a circle lying on a constant-radius tube around
+ * the other (the tight Hopf link). Those return evenly spaced representatives and set lastContinuum().
+ * Parallel planes and coplanar circles are not special: they have isolated minima unless coaxial.
+ */
 import type { Circle, Vec3 } from '../model/types.js';
+import { mulTrig, evalTrig4 } from './trigPoly.js';
 
 /** Floats per contact in the raw output buffer: [angleA, distance, pA(3), pB(3)]. */
 export const CONTACT_STRIDE = 8;
-/** At most 4 local minima exist (degree-8 stationary equation); continua are sampled with this many points. */
+/** At most 4 isolated local minima exist (degree-8 stationary equation); continua use CONTINUUM_SAMPLES. */
+export const CONTINUUM_SAMPLES = 12;
 export const MAX_CONTACTS = 16;
+
+/** Relative size (to the length scale) of the spread of f below which f is taken as constant (a continuum). */
+export const CONTINUUM_REL_TOL = 1e-12;
+/** Relative size of g below which the continuum test is run (cheap pre-filter). */
+const G_SMALL_REL = 1e-6;
+const INITIAL_INTERVALS = 24;
+const EPS = 2.220446049250313e-16;
+/** Below this size of g relative to its terms, g is formed by heavy cancellation: use the sampled regime. */
+const NEAR_CONTINUUM_REL = 1e-6;
+/** Below this, Newton on g is not precise enough for the root: polish on the exact h instead. */
+const WELL_CONDITIONED_REL = 1e-4;
+const NEAR_CONTINUUM_SAMPLES = 720;
+const MAX_INTERVAL_VISITS = 3000;
+const TWO_PI = 2 * Math.PI;
 
 export type ContinuumKind = 'coaxial' | 'on-tube';
 
@@ -25,8 +63,486 @@ export interface RingDistance {
   contacts: Contact[];
   degenerate: boolean;
   continuum: { kind: ContinuumKind; description: string } | null;
+  /**
+   * True when every local minimum was isolated with certified bounds (or the pair is an exact continuum).
+   * False in the near-continuum regime, where minima shallower than ~1e-8 of the squared size may be merged.
+   */
+  certified: boolean;
 }
 
-export function ringDistance(_a: Circle, _b: Circle): RingDistance {
-  throw new Error('kernel not yet implemented');
+/** Library entry point: normals need not be unit; allocation is fine here. */
+export function ringDistance(a: Circle, b: Circle): RingDistance {
+  const nA = unit(a.normal), nB = unit(b.normal);
+  const out = new Float64Array(MAX_CONTACTS * CONTACT_STRIDE);
+  const count = circleContacts(a.center, nA, a.radius, b.center, nB, b.radius, out);
+  const kind = lastKind;
+  const certified = lastCertified;
+  const eB = basis(nB);
+  const contacts: Contact[] = [];
+  let distance = Infinity;
+  for (let i = 0; i < count; i++) {
+    const o = i * CONTACT_STRIDE;
+    const onA: Vec3 = [out[o + 2]!, out[o + 3]!, out[o + 4]!];
+    const onB: Vec3 = [out[o + 5]!, out[o + 6]!, out[o + 7]!];
+    const qx = onB[0] - b.center[0]!, qy = onB[1] - b.center[1]!, qz = onB[2] - b.center[2]!;
+    const angleB = wrapAngle(Math.atan2(qx * eB[3] + qy * eB[4] + qz * eB[5], qx * eB[0] + qy * eB[1] + qz * eB[2]));
+    const d = out[o + 1]!;
+    if (d < distance) distance = d;
+    contacts.push({ onA, onB, distance: d, angleA: out[o]!, angleB });
+  }
+  return {
+    distance,
+    contacts,
+    degenerate: kind !== null,
+    continuum: kind === null ? null : { kind, description: describe(kind, distance) },
+    certified,
+  };
+}
+
+let lastKind: ContinuumKind | null = null;
+let lastCertified = true;
+/** Whether the last circleContacts call isolated its minima with certified bounds (see RingDistance). */
+export function lastCertifiedResult(): boolean {
+  return lastCertified;
+}
+/** Continuum kind found by the last circleContacts call, or null for isolated minima. */
+export function lastContinuum(): ContinuumKind | null {
+  return lastKind;
+}
+
+// Scratch buffers, created once per module copy (each worker thread has its own).
+const FR = new Float64Array(6);
+const ZC = new Float64Array(3);
+const ZPC = new Float64Array(3);
+const PPC = new Float64Array(3);
+const Z2 = new Float64Array(5);
+const ZZP = new Float64Array(5);
+const W = new Float64Array(5);
+const WP = new Float64Array(5);
+const PP2 = new Float64Array(5);
+const T1 = new Float64Array(9);
+const T2 = new Float64Array(9);
+const G = new Float64Array(9);
+const EV = new Float64Array(3);
+const GLO = new Float64Array(INITIAL_INTERVALS + 1);
+const SAMPLE_S = new Float64Array(NEAR_CONTINUUM_SAMPLES + 160);
+const STACK = new Float64Array(6 * 512);
+const H0 = Math.PI / INITIAL_INTERVALS;
+/** Subdivision levels: the switch half-width SWITCH_WIDTH = H0 / 2^MAX_LEVEL is about 1e-6 rad. */
+const MAX_LEVEL = 17;
+const HALF_WIDTH = new Float64Array(MAX_LEVEL + 1);
+const HALF_C = new Float64Array(MAX_LEVEL + 1);
+const HALF_S = new Float64Array(MAX_LEVEL + 1);
+const FULL_C = new Float64Array(MAX_LEVEL + 1);
+const FULL_S = new Float64Array(MAX_LEVEL + 1);
+for (let l = 0; l <= MAX_LEVEL; l++) {
+  FULL_C[l] = Math.cos(H0 / 2 ** l);
+  FULL_S[l] = Math.sin(H0 / 2 ** l);
+  HALF_WIDTH[l] = H0 / 2 ** l;
+  HALF_C[l] = Math.cos(H0 / 2 ** (l + 1));
+  HALF_S[l] = Math.sin(H0 / 2 ** (l + 1));
+}
+const GRID_C = new Float64Array(2 * INITIAL_INTERVALS + 1);
+const GRID_S = new Float64Array(2 * INITIAL_INTERVALS + 1);
+for (let i = 0; i <= 2 * INITIAL_INTERVALS; i++) {
+  const s = (i * Math.PI) / INITIAL_INTERVALS;
+  GRID_C[i] = Math.cos(s);
+  GRID_S[i] = Math.sin(s);
+}
+
+// Geometry of the current query (module scope so helpers need no arguments).
+let Dx = 0, Dy = 0, Dz = 0, e1x = 0, e1y = 0, e1z = 0, e2x = 0, e2y = 0, e2z = 0;
+let Bx = 0, By = 0, Bz = 0, Nx = 0, Ny = 0, Nz = 0, Ax = 0, Ay = 0, Az = 0, rA = 0, rB = 0;
+
+/**
+ * Hot path. Unit normals required. Writes CONTACT_STRIDE floats per local minimum into out
+ * ([angleA, distance, pA, pB]) and returns how many. out must hold MAX_CONTACTS * CONTACT_STRIDE floats.
+ */
+export function circleContacts(
+  cA: ArrayLike<number>, nA: ArrayLike<number>, RA: number,
+  cB: ArrayLike<number>, nB: ArrayLike<number>, RB: number,
+  out: Float64Array,
+): number {
+  Ax = cA[0]!; Ay = cA[1]!; Az = cA[2]!;
+  Bx = cB[0]!; By = cB[1]!; Bz = cB[2]!;
+  Nx = nB[0]!; Ny = nB[1]!; Nz = nB[2]!;
+  rA = RA; rB = RB;
+  Dx = Ax - Bx; Dy = Ay - By; Dz = Az - Bz;
+  basisInto(nA[0]!, nA[1]!, nA[2]!, FR);
+  e1x = FR[0]!; e1y = FR[1]!; e1z = FR[2]!; e2x = FR[3]!; e2y = FR[4]!; e2z = FR[5]!;
+  const dd = Dx * Dx + Dy * Dy + Dz * Dz;
+  const L = RA + RB + Math.sqrt(dd);
+
+  // Coaxial: parallel normals and A's centre on B's axis — every point of A is a closest point.
+  const zD = Nx * Dx + Ny * Dy + Nz * Dz;
+  const cxn = Math.hypot(nA[1]! * Nz - nA[2]! * Ny, nA[2]! * Nx - nA[0]! * Nz, nA[0]! * Ny - nA[1]! * Nx);
+  const off = Math.hypot(Dx - zD * Nx, Dy - zD * Ny, Dz - zD * Nz);
+  if (cxn * RA <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L) {
+    lastKind = 'coaxial';
+    lastCertified = true;
+    return writeContinuum(out);
+  }
+
+  // Trig-polynomial coefficients: z = nB.Delta, p = |Delta|^2 (degree 1), then w = p - z^2, w' and g.
+  const e1n = Nx * e1x + Ny * e1y + Nz * e1z, e2n = Nx * e2x + Ny * e2y + Nz * e2z;
+  const De1 = Dx * e1x + Dy * e1y + Dz * e1z, De2 = Dx * e2x + Dy * e2y + Dz * e2z;
+  const za = RA * e1n, zb = RA * e2n;
+  const pa = 2 * RA * De1, pb = 2 * RA * De2;
+  ZC[0] = zD; ZC[1] = za; ZC[2] = zb;
+  ZPC[0] = 0; ZPC[1] = zb; ZPC[2] = -za;
+  PPC[0] = 0; PPC[1] = pb; PPC[2] = -pa;
+  mulTrig(ZC, 1, ZC, 1, Z2);
+  mulTrig(ZC, 1, ZPC, 1, ZZP);
+  W[0] = dd + RA * RA - Z2[0]!; W[1] = pa - Z2[1]!; W[2] = pb - Z2[2]!; W[3] = -Z2[3]!; W[4] = -Z2[4]!;
+  WP[0] = -2 * ZZP[0]!; WP[1] = pb - 2 * ZZP[1]!; WP[2] = -pa - 2 * ZZP[2]!; WP[3] = -2 * ZZP[3]!; WP[4] = -2 * ZZP[4]!;
+  mulTrig(PPC, 1, PPC, 1, PP2);
+  mulTrig(PP2, 2, W, 2, T1);
+  mulTrig(WP, 2, WP, 2, T2);
+  let gNorm = 0, gScale = 0;
+  const RB2 = RB * RB;
+  for (let i = 0; i < 9; i++) {
+    const v = T1[i]! - RB2 * T2[i]!;
+    G[i] = v;
+    gNorm += Math.abs(v);
+    gScale += Math.abs(T1[i]!) + RB2 * Math.abs(T2[i]!);
+  }
+
+  if (gNorm <= G_SMALL_REL * gScale && isConstantF(L)) {
+    lastKind = 'on-tube';
+    lastCertified = true;
+    return writeContinuum(out);
+  }
+  lastKind = null;
+  if (gNorm === 0) return globalFallback(out);
+
+  // Normalise g so tolerances are relative.
+  const inv = 1 / gNorm;
+  let L3 = 0;
+  for (let i = 0; i < 9; i++) G[i]! *= inv;
+  for (let k = 1; k <= 4; k++) L3 += k * k * k * Math.hypot(G[2 * k - 1]!, G[2 * k]!);
+  // Grid values of g (shared endpoints of the initial intervals).
+  for (let i = 0; i <= INITIAL_INTERVALS; i++) {
+    evalTrig4(G, GRID_C[2 * i]!, GRID_S[2 * i]!, EV);
+    GLO[i] = EV[0]!;
+  }
+  const relative = gNorm / gScale;
+  // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
+  lastCertified = true;
+  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L3, (2 * EPS) / relative, relative < WELL_CONDITIONED_REL, out);
+  if (count < 0) {
+    lastCertified = false;
+    count = sampleMinima(out);
+  }
+  if (count > 0) return count;
+  lastCertified = false;
+  return globalFallback(out);
+}
+
+/**
+ * Near-continuum regime (f varies by a tiny fraction of the distance, e.g. within 1e-7 of the tight Hopf
+ * arrangement): sign changes of the exact h on a grid, each bracketed root refined on h. Where A passes close
+ * to B's axis, f has a cusp-like maximum of width ~ rho_min with minima beside it, so the grid is refined
+ * geometrically around the closest approach (steps rho_min/RA * 2^k). A minimum can only be missed if it lies
+ * within one grid step of a maximum away from the axis, where f is nearly constant.
+ */
+function sampleMinima(out: Float64Array): number {
+  const n = NEAR_CONTINUUM_SAMPLES;
+  const step = TWO_PI / n;
+  let nS = 0;
+  let bestRho = Infinity, bestI = 0;
+  for (let i = 0; i < n; i++) {
+    const sv = i * step;
+    SAMPLE_S[nS++] = sv;
+    const r2 = rho2At(sv);
+    if (r2 < bestRho) { bestRho = r2; bestI = i; }
+  }
+  // Closest approach to B's axis: golden section on rho^2 around the best sample, then a geometric grid.
+  let lo = (bestI - 1) * step, hi = (bestI + 1) * step;
+  for (let it = 0; it < 80; it++) {
+    const x1 = hi - 0.6180339887498949 * (hi - lo), x2 = lo + 0.6180339887498949 * (hi - lo);
+    if (rho2At(x1) < rho2At(x2)) hi = x2;
+    else lo = x1;
+  }
+  const sc = 0.5 * (lo + hi);
+  const width = Math.max(Math.sqrt(Math.max(rho2At(sc), 0)) / rA, 1e-15);
+  for (let k = -6; k < 60 && width * 2 ** k < step; k++) {
+    SAMPLE_S[nS++] = sc - width * 2 ** k;
+    SAMPLE_S[nS++] = sc + width * 2 ** k;
+  }
+  SAMPLE_S[nS++] = sc;
+  for (let i = 0; i < nS; i++) SAMPLE_S[i] = wrapAngle(SAMPLE_S[i]!);
+  SAMPLE_S.subarray(0, nS).sort();
+  let count = 0;
+  const h0 = hAt(SAMPLE_S[0]!);
+  let hPrev = h0;
+  for (let i = 1; i <= nS && count < MAX_CONTACTS; i++) {
+    const sPrev = SAMPLE_S[i - 1]!;
+    const sv = i === nS ? SAMPLE_S[0]! + TWO_PI : SAMPLE_S[i]!;
+    const h = i === nS ? h0 : hAt(sv);
+    if (hPrev < 0 && h >= 0) writeContact(out, count++, wrapAngle(refineH(sPrev, sv, hPrev, h)));
+    hPrev = h;
+  }
+  return count;
+}
+
+/** rho(s)^2: squared distance of A(s) from B's axis. */
+function rho2At(sv: number): number {
+  const c = Math.cos(sv), sn = Math.sin(sv);
+  const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
+  const z = dx * Nx + dy * Ny + dz * Nz;
+  const qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
+  return qx * qx + qy * qy + qz * qz;
+}
+
+/**
+ * Every periodic f has a minimum, so zero minima means rounding hid the sign pattern (g nearly flat). Take the
+ * lowest of a fine sample, polished by golden-section search, so the global distance is still reported.
+ */
+function globalFallback(out: Float64Array): number {
+  const n = 720;
+  let best = 0, bestF = Infinity;
+  for (let i = 0; i < n; i++) {
+    const f = fAt((i * TWO_PI) / n);
+    if (f < bestF) { bestF = f; best = i; }
+  }
+  let lo = ((best - 1) * TWO_PI) / n, hi = ((best + 1) * TWO_PI) / n;
+  const gr = 0.6180339887498949;
+  for (let it = 0; it < 60; it++) {
+    const x1 = hi - gr * (hi - lo), x2 = lo + gr * (hi - lo);
+    if (fAt(x1) < fAt(x2)) hi = x2;
+    else lo = x1;
+  }
+  writeContact(out, 0, wrapAngle(0.5 * (lo + hi)));
+  return 1;
+}
+
+/** Distance from point p to the circle (c, unit n, R), and the closest point written to out (if given). */
+export function closestPointOnCircle(
+  p: ArrayLike<number>, c: ArrayLike<number>, n: ArrayLike<number>, R: number, out?: Float64Array | number[],
+): number {
+  const dx = p[0]! - c[0]!, dy = p[1]! - c[1]!, dz = p[2]! - c[2]!;
+  const z = dx * n[0]! + dy * n[1]! + dz * n[2]!;
+  let qx = dx - z * n[0]!, qy = dy - z * n[1]!, qz = dz - z * n[2]!;
+  const rho = Math.hypot(qx, qy, qz);
+  if (rho > 0) {
+    qx /= rho; qy /= rho; qz /= rho;
+  } else {
+    // On the axis every point of the circle is closest; pick the frame's angle-0 point.
+    basisInto(n[0]!, n[1]!, n[2]!, FR);
+    qx = FR[0]!; qy = FR[1]!; qz = FR[2]!;
+  }
+  if (out) {
+    out[0] = c[0]! + R * qx;
+    out[1] = c[1]! + R * qy;
+    out[2] = c[2]! + R * qz;
+  }
+  return Math.hypot(z, rho - R);
+}
+
+/** Eberly's point–circle distance d^2 = (n.Δ)^2 + (|Δ - (n.Δ)n| - R)^2. */
+export function pointCircleDistance(p: ArrayLike<number>, c: ArrayLike<number>, n: ArrayLike<number>, R: number): number {
+  return closestPointOnCircle(p, c, n, R);
+}
+
+// ---------------------------------------------------------------------------------------------------
+
+/**
+ * Certified isolation of the roots of the normalised degree-4 trig polynomial G on [0, 2π), keeping only
+ * those that are local minima of f. Third-order Taylor bounds about each interval's midpoint m (half-width r),
+ * with L3 >= max |g'''| and the rounding level `noise` of G:
+ *   exclusion   |g(m)| - |g'(m)| r - |g''(m)| r^2/2 - L3 r^3/6 > noise  (no root),
+ *   uniqueness  |g'(m)| - |g''(m)| r - L3 r^2/2 > 0                     (g monotone: root iff sign change).
+ * h is continuous and vanishes only at roots of g (including A's crossings of B's axis, where rho = w' = 0),
+ * so across an interval holding exactly one root, h going from - to + means that root is a local minimum of f;
+ * + to - is a maximum (or an axis cusp) and no sign change is a root of the spurious factor. Symmetric
+ * arrangements make h and the spurious factor vanish together (double roots of g, never "unique"): those are
+ * subdivided down to SWITCH_WIDTH and decided by the sign of h itself, then bracketed on h. Two minima closer
+ * than SWITCH_WIDTH would differ in depth by ~SWITCH_WIDTH^3 (relative) and are reported once.
+ * Child midpoints are rotations of the parent's (cos, sin) from per-level tables: no trig calls.
+ */
+function isolateMinima(L3: number, noise: number, polishOnH: boolean, out: Float64Array): number {
+  let count = 0;
+  let top = 0;
+  for (let i = INITIAL_INTERVALS - 1; i >= 0; i--) {
+    STACK[top++] = (2 * i + 1) * H0; STACK[top++] = 0; STACK[top++] = GLO[i]!; STACK[top++] = GLO[i + 1]!;
+    STACK[top++] = GRID_C[2 * i + 1]!; STACK[top++] = GRID_S[2 * i + 1]!;
+  }
+  let visits = 0;
+  while (top > 0) {
+    const sm = STACK[--top]!, cm = STACK[--top]!, ghi = STACK[--top]!, glo = STACK[--top]!;
+    const level = STACK[--top]!, m = STACK[--top]!;
+    const r = HALF_WIDTH[level]!;
+    evalTrig4(G, cm, sm, EV);
+    const gm = EV[0]!, dgm = Math.abs(EV[1]!), ddgm = Math.abs(EV[2]!);
+    visits++;
+    if (Math.abs(gm) - r * (dgm + r * (0.5 * ddgm + (r * L3) / 6)) > noise) continue;
+    const unique = dgm - r * (ddgm + 0.5 * L3 * r) > 0;
+    // End values within the rounding level cannot prove the absence of a sign change: ask h.
+    const clear = Math.abs(glo) > noise && Math.abs(ghi) > noise;
+    if (unique && clear && glo * ghi > 0) continue;
+    if (visits > MAX_INTERVAL_VISITS || top + 12 > STACK.length) return -1; // hand over to the sampled regime
+    const floor = level + 1 >= MAX_LEVEL;
+    if (unique || floor) {
+      // One root here (or the switch width is reached): read h at both ends.
+      const cr = FULL_C[level]!, sr = FULL_S[level]!;
+      const hLo = hAtCS(cm * cr + sm * sr, sm * cr - cm * sr);
+      const hHi = hAtCS(cm * cr - sm * sr, sm * cr + cm * sr);
+      if (hLo < 0 && hHi >= 0 && count < MAX_CONTACTS) {
+        const root = unique && clear && glo * ghi < 0 && !polishOnH ? refine(m - r, m + r, glo, ghi) : refineH(m - r, m + r, hLo, hHi);
+        writeContact(out, count++, wrapAngle(root));
+      }
+      continue;
+    }
+    // Children [m, m + r] and [m - r, m] with midpoints m ± r/2.
+    const hc = HALF_C[level]!, hs = HALF_S[level]!;
+    const rc = 0.5 * r;
+    STACK[top++] = m + rc; STACK[top++] = level + 1; STACK[top++] = gm; STACK[top++] = ghi;
+    STACK[top++] = cm * hc - sm * hs; STACK[top++] = sm * hc + cm * hs;
+    STACK[top++] = m - rc; STACK[top++] = level + 1; STACK[top++] = glo; STACK[top++] = gm;
+    STACK[top++] = cm * hc + sm * hs; STACK[top++] = sm * hc - cm * hs;
+  }
+  return count;
+}
+
+/** Root of h (from the geometry) in [lo, hi] given h(lo) < 0 <= h(hi): Illinois-modified regula falsi. */
+function refineH(lo: number, hi: number, hLo: number, hHi: number): number {
+  let a = lo, b = hi, fa = hLo, fb = hHi;
+  if (fb === 0) return b;
+  let side = 0;
+  for (let it = 0; it < 200 && b - a > ROOT_ANGLE_TOL; it++) {
+    let x = (a * fb - b * fa) / (fb - fa);
+    if (!(x > a && x < b)) x = 0.5 * (a + b);
+    const fx = hAt(x);
+    if (fx === 0) return x;
+    if (fx < 0) {
+      a = x; fa = fx;
+      if (side === -1) fb *= 0.5;
+      side = -1;
+    } else {
+      b = x; fb = fx;
+      if (side === 1) fa *= 0.5;
+      side = 1;
+    }
+  }
+  return 0.5 * (a + b);
+}
+
+/** h(s) = p' rho - RB w' from the geometry (no cancellation through the coefficients). */
+function hAt(s: number): number {
+  return hAtCS(Math.cos(s), Math.sin(s));
+}
+
+function hAtCS(c: number, sn: number): number {
+  const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
+  const tx = rA * (-e1x * sn + e2x * c), ty = rA * (-e1y * sn + e2y * c), tz = rA * (-e1z * sn + e2z * c);
+  const z = dx * Nx + dy * Ny + dz * Nz, zp = tx * Nx + ty * Ny + tz * Nz;
+  const rho = Math.hypot(dx - z * Nx, dy - z * Ny, dz - z * Nz);
+  const pp = 2 * (dx * tx + dy * ty + dz * tz);
+  return pp * rho - rB * (pp - 2 * z * zp);
+}
+
+/** Root angles are resolved to this many radians (distance error is quadratic in it, so far below 1e-16). */
+const ROOT_ANGLE_TOL = 1e-13;
+/** Rounding level of the normalised G (sum of |coefficients| = 1). */
+const G_NOISE = 1e-15;
+
+/** Safeguarded Newton (rtsafe) on G in [lo, hi] with a sign change, started at the secant point. */
+function refine(lo: number, hi: number, glo: number, ghi: number): number {
+  let a = lo, b = hi;
+  const aNeg = glo < 0;
+  let x = lo - (glo * (hi - lo)) / (ghi - glo);
+  for (let it = 0; it < 100; it++) {
+    evalTrig4(G, Math.cos(x), Math.sin(x), EV);
+    const gx = EV[0]!, dg = EV[1]!;
+    // G is normalised (sum of |coefficients| = 1): below this its sign is rounding noise.
+    if (Math.abs(gx) <= G_NOISE) return x;
+    if ((gx < 0) === aNeg) a = x;
+    else b = x;
+    let next = dg !== 0 ? x - gx / dg : 0.5 * (a + b);
+    if (!(next > a && next < b)) next = 0.5 * (a + b);
+    if (Math.abs(next - x) <= ROOT_ANGLE_TOL || b - a <= ROOT_ANGLE_TOL) return next;
+    x = next;
+  }
+  return x;
+}
+
+function writeContact(out: Float64Array, k: number, s: number): void {
+  const c = Math.cos(s), sn = Math.sin(s);
+  const px = Ax + rA * (e1x * c + e2x * sn), py = Ay + rA * (e1y * c + e2y * sn), pz = Az + rA * (e1z * c + e2z * sn);
+  const dx = px - Bx, dy = py - By, dz = pz - Bz;
+  const z = dx * Nx + dy * Ny + dz * Nz;
+  let qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
+  const rho = Math.hypot(qx, qy, qz);
+  if (rho > 0) {
+    qx /= rho; qy /= rho; qz /= rho;
+  } else {
+    basisInto(Nx, Ny, Nz, FR);
+    qx = FR[0]!; qy = FR[1]!; qz = FR[2]!;
+  }
+  const o = k * CONTACT_STRIDE;
+  out[o] = s;
+  out[o + 1] = Math.hypot(z, rho - rB);
+  out[o + 2] = px; out[o + 3] = py; out[o + 4] = pz;
+  out[o + 5] = Bx + rB * qx; out[o + 6] = By + rB * qy; out[o + 7] = Bz + rB * qz;
+}
+
+/** Evenly spaced representatives of a continuum, offset by half a step to avoid the axis crossing at s = π. */
+function writeContinuum(out: Float64Array): number {
+  let count = 0;
+  for (let k = 0; k < CONTINUUM_SAMPLES; k++) {
+    const s = ((k + 0.5) * TWO_PI) / CONTINUUM_SAMPLES;
+    writeContact(out, count++, s);
+  }
+  return count;
+}
+
+/** f(s) = squared distance from A(s) to circle B, from the geometry (not the coefficients). */
+function fAt(s: number): number {
+  const c = Math.cos(s), sn = Math.sin(s);
+  const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
+  const z = dx * Nx + dy * Ny + dz * Nz;
+  const rho = Math.hypot(dx - z * Nx, dy - z * Ny, dz - z * Nz);
+  return z * z + (rho - rB) * (rho - rB);
+}
+
+/** f is constant along A (a circle on a tube around B): compare f at spread samples. */
+function isConstantF(L: number): boolean {
+  let lo = Infinity, hi = -Infinity;
+  for (let k = 0; k < 16; k++) {
+    const d = Math.sqrt(fAt((k * TWO_PI) / 16 + 0.1));
+    if (d < lo) lo = d;
+    if (d > hi) hi = d;
+  }
+  return hi - lo <= CONTINUUM_REL_TOL * L;
+}
+
+/** Duff et al. 2017 orthonormal basis (same as planeBasis in model/vec.ts), written into out[0..5]. */
+function basisInto(nx: number, ny: number, nz: number, out: Float64Array): void {
+  const sign = nz >= 0 ? 1 : -1;
+  const a = -1 / (sign + nz);
+  const b = nx * ny * a;
+  out[0] = 1 + sign * nx * nx * a; out[1] = sign * b; out[2] = -sign * nx;
+  out[3] = b; out[4] = sign + ny * ny * a; out[5] = -ny;
+}
+
+function basis(n: ArrayLike<number>): Float64Array {
+  const out = new Float64Array(6);
+  basisInto(n[0]!, n[1]!, n[2]!, out);
+  return out;
+}
+
+function unit(v: ArrayLike<number>): Vec3 {
+  const l = Math.hypot(v[0]!, v[1]!, v[2]!);
+  return [v[0]! / l, v[1]! / l, v[2]! / l];
+}
+
+function wrapAngle(s: number): number {
+  const r = s % TWO_PI;
+  return r < 0 ? r + TWO_PI : r;
+}
+
+function describe(kind: ContinuumKind, d: number): string {
+  return kind === 'coaxial'
+    ? `coaxial circles: every point of A is at the same distance ${d} from B`
+    : `A lies on the tube of radius ${d} around B: a whole circle of closest pairs`;
 }

@@ -1,1 +1,2 @@
 export * from './circleDistance.js';
+export * from './gradient.js';

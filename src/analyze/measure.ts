@@ -1,0 +1,191 @@
+// `thickring measure`: what a layout allows as it stands, without moving any ring. Per pair the
+// core distance, closest pairs and linking number; overall the largest common tube radius
+//   t = min( min_i R_i / ρ_i , min_pairs d_ij / (ρ_i + ρ_j) )
+// where ρ_i are the rings' tube ratios (all 1 unless the layout gives per-ring tubes). A tube of
+// radius r_i stays embedded iff r_i <= R_i, and tubes i, j are disjoint iff d_ij >= r_i + r_j
+// (thickness in the sense of Gonzalez–Maddocks 1999 and Cantarella–Kusner–Sullivan 2002).
+import { ringDistance, type Contact, type ContinuumKind } from '../kernel/index.js';
+import { ringPairs } from '../model/ringPairs.js';
+import type { Layout, Vec3 } from '../model/types.js';
+import { connectedness, linkingMatrix, linkingNumber, type LinkingNumber } from '../topology/index.js';
+
+/** Limits within this fraction of the tube radius count as ties (kernel distances carry ~1e-8 relative noise). */
+export const LIMIT_REL_TOL = 1e-7;
+
+export interface MeasureRing {
+  name: string;
+  center: Vec3;
+  normal: Vec3;
+  /** Core radius R (layout units). */
+  radius: number;
+  /** This ring's tube radius at the common tube: r_i = tube * tubeRatio (layout units). */
+  tube: number;
+  tubeRatio: number;
+  /** (R - r) / r: inner diameter over wire diameter (dimensionless). */
+  aspectRatio: number;
+  /** Largest common tube this ring alone allows: R / tubeRatio (layout units). */
+  tubeLimit: number;
+}
+
+export interface MeasurePair {
+  /** Ring indices; b is translated by `shift` lattice vectors when shift is present and non-zero. */
+  a: number;
+  b: number;
+  nameA: string;
+  nameB: string;
+  shift?: number[];
+  /** Minimum core-to-core distance (layout units). */
+  distance: number;
+  /** Every local closest pair (struts); for a continuum, evenly spaced representatives. */
+  contacts: Contact[];
+  linking: LinkingNumber;
+  continuum: { kind: ContinuumKind; description: string } | null;
+  /** Largest common tube this pair alone allows: distance / (ρ_a + ρ_b) (layout units). */
+  tubeLimit: number;
+}
+
+export interface MeasureLimit {
+  /** Names of rings whose own core radius sets the tube (r_i = R_i). */
+  rings: string[];
+  /** Pairs whose core distance sets the tube (r_a + r_b = d). */
+  pairs: { a: string; b: string; shift?: number[] }[];
+}
+
+export interface MeasureResult {
+  command: 'measure';
+  status: 'ok';
+  units: string | null;
+  /** Largest common tube radius the layout allows as it stands (layout units). */
+  tube: number;
+  /** tube / smallest core radius (dimensionless). */
+  tubeOverCore: number;
+  /** Largest (R - r) / r over the rings: inner diameter / wire diameter of the thinnest-walled ring. */
+  aspectRatio: number;
+  tubeRatios: number[];
+  /** True when the ratios come from per-ring `tube` values in the layout. */
+  ratiosFromLayout: boolean;
+  /** The layout's own largest `tube` value and whether it fits (null when no ring gives a tube). */
+  given: { tube: number; fits: boolean } | null;
+  rings: MeasureRing[];
+  pairs: MeasurePair[];
+  limitedBy: MeasureLimit;
+  /** Pairwise linking numbers of the rings in the layout (cell), diagonal 0. */
+  linking: number[][];
+  /** Groups of ring names held together by linking (lattice links included). */
+  components: string[][];
+  /** Rings linked to no other ring. */
+  unheld: string[];
+  notes: string[];
+  cautions: string[];
+}
+
+export const MEASURE_CAUTIONS = [
+  'The tube radius is a geometric limit with zero clearance: printed or wire rings need clearance (see thickring fabricate).',
+  'Geometry says nothing about strength: do not use these figures for load-bearing, lifting or climbing chain.',
+  'Small rings are a choking hazard for children; for skin contact use skin-safe (e.g. nickel-free) materials.',
+];
+
+/** Expects a layout from parseLayout (finite numbers, unit normals, no intersecting circles). */
+export function measureLayout(layout: Layout): MeasureResult {
+  const rings = layout.rings;
+  const notes: string[] = [];
+  const { ratios, fromLayout } = tubeRatios(layout, notes);
+  const maxR = Math.max(...rings.map((r) => r.radius));
+
+  // Every tube limit in one list; the smallest is the common tube.
+  const ringLimits = rings.map((r, i) => r.radius / ratios[i]!);
+  const pairs: MeasurePair[] = [];
+  // Copies whose bounding spheres are more than 2 max R apart cannot limit t (r_i + r_j <= R_i + R_j).
+  for (const p of ringPairs(layout, 2 * maxR)) {
+    const a = rings[p.i]!, b = rings[p.j]!;
+    const shifted = p.shift.some((s) => s !== 0);
+    const bc: Vec3 = [b.center[0] + p.offset[0], b.center[1] + p.offset[1], b.center[2] + p.offset[2]];
+    const ca = { center: a.center, normal: a.normal, radius: a.radius };
+    const cb = { center: bc, normal: b.normal, radius: b.radius };
+    const d = ringDistance(ca, cb);
+    const pair: MeasurePair = {
+      a: p.i, b: p.j, nameA: a.name, nameB: b.name,
+      distance: d.distance, contacts: d.contacts, linking: linkingNumber(ca, cb), continuum: d.continuum,
+      tubeLimit: d.distance / (ratios[p.i]! + ratios[p.j]!),
+    };
+    if (shifted) pair.shift = p.shift;
+    pairs.push(pair);
+  }
+  const tube = Math.min(...ringLimits, ...pairs.map((p) => p.tubeLimit));
+
+  const tieAt = tube * (1 + LIMIT_REL_TOL);
+  const limitedBy: MeasureLimit = {
+    rings: rings.filter((_, i) => ringLimits[i]! <= tieAt).map((r) => r.name),
+    pairs: pairs.filter((p) => p.tubeLimit <= tieAt).map((p) => (p.shift ? { a: p.nameA, b: p.nameB, shift: p.shift } : { a: p.nameA, b: p.nameB })),
+  };
+  const measured: MeasureRing[] = rings.map((r, i) => {
+    const ri = tube * ratios[i]!;
+    return {
+      name: r.name, center: r.center, normal: r.normal, radius: r.radius,
+      tube: ri, tubeRatio: ratios[i]!, aspectRatio: (r.radius - ri) / ri, tubeLimit: ringLimits[i]!,
+    };
+  });
+
+  const linking = linkingMatrix(rings);
+  const latticeLinks = pairs.filter((p) => p.shift && p.linking !== 0).map((p): [number, number] => [p.a, p.b]);
+  const conn = connectedness(linking, latticeLinks);
+  const names = (ix: number[]): string[] => ix.map((i) => rings[i]!.name);
+  describePairs(pairs, rings.length, notes);
+  if (conn.unheld.length > 0 && rings.length > 1) {
+    notes.push(`Not held by any link: ${names(conn.unheld).join(', ')} (linked to no other ring).`);
+  }
+  if (layout.symmetry && layout.symmetry.type !== 'none') {
+    notes.push(`The layout names ${layout.symmetry.type} symmetry of order ${layout.symmetry.order}; measure takes the rings as given and does not check it.`);
+  }
+
+  const given = fromLayout || rings.some((r) => r.tube !== undefined) ? givenTube(layout, tube) : null;
+  return {
+    command: 'measure',
+    status: 'ok',
+    units: layout.units ?? null,
+    tube,
+    tubeOverCore: tube / Math.min(...rings.map((r) => r.radius)),
+    aspectRatio: Math.max(...measured.map((r) => r.aspectRatio)),
+    tubeRatios: ratios,
+    ratiosFromLayout: fromLayout,
+    given,
+    rings: measured,
+    pairs,
+    limitedBy,
+    linking,
+    components: conn.components.map(names),
+    unheld: rings.length > 1 ? names(conn.unheld) : [],
+    notes,
+    cautions: [...MEASURE_CAUTIONS],
+  };
+}
+
+/** ρ_i = tube_i / max tube; a ring without a tube takes ratio 1 (the thickest wire). */
+function tubeRatios(layout: Layout, notes: string[]): { ratios: number[]; fromLayout: boolean } {
+  const tubes = layout.rings.map((r) => r.tube);
+  const given = tubes.filter((t): t is number => t !== undefined);
+  const maxT = given.length > 0 ? Math.max(...given) : 0;
+  const differ = given.some((t) => t !== maxT);
+  if (!differ) return { ratios: layout.rings.map(() => 1), fromLayout: false };
+  notes.push('Rings carry different tube values: they are read as ratios (r_i = tube * tube_i / largest tube_i), not as sizes.');
+  const missing = layout.rings.filter((r) => r.tube === undefined).map((r) => r.name);
+  if (missing.length > 0) notes.push(`No tube given for ${missing.join(', ')}: taken as ratio 1 (the thickest wire).`);
+  return { ratios: tubes.map((t) => (t === undefined ? 1 : t / maxT)), fromLayout: true };
+}
+
+function givenTube(layout: Layout, tube: number): { tube: number; fits: boolean } {
+  const largest = Math.max(...layout.rings.map((r) => r.tube ?? 0));
+  return { tube: largest, fits: largest <= tube };
+}
+
+function describePairs(pairs: MeasurePair[], n: number, notes: string[]): void {
+  for (const p of pairs) {
+    if (p.continuum) {
+      const at = p.shift ? ` (shifted by lattice [${p.shift.join(', ')}])` : '';
+      notes.push(`${p.nameA}-${p.nameB}${at}: closest points form a continuum (${p.continuum.kind}); contacts are evenly spaced representatives.`);
+    }
+  }
+  if (n > 1 && pairs.every((p) => p.linking === 0)) {
+    notes.push('No pair of rings is linked: round rings with no linked pair are not held together (Freedman–Skora 1987).');
+  }
+}

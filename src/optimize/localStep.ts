@@ -1,0 +1,167 @@
+// One trust-region step of the outer loop: a strictly convex QP on the linearised struts.
+//
+//   maximise τ - (|z|² + τ²)/(2Δ)   subject to   c_k τ - G_k·z <= h_k  (h_k = g_k - c_k t >= 0),
+//                                                |z_i| <= Δ,  τ <= t_max - t.
+//
+// Why a proximal QP and not the bare LP of sequential linear programming: the LP optimum sits at a vertex of
+// the trust box, which near a degenerate optimum (a continuum of contacts, or fewer active struts than free
+// variables) makes the steps jump between box corners; the proximal term picks the smallest step with the
+// best predicted gain, and its fixed points are exactly the KKT points (Σμ_k c_k = 1, Σμ_k G_k = 0).
+// Why this scaling: with y = z/√Δ, ψ = τ/√Δ the Hessian is the identity, which is SLSQP's starting
+// quasi-Newton matrix, so its first QP subproblem is already the exact step and it stops one iteration later
+// (no line-search trouble, which is what makes the WebAssembly build abort). nlopt-js LD_SLSQP is the main
+// solver as the design asks; LD_MMA and LD_CCSAQ are the alternatives the pool retries with. HiGHS
+// (active-set QP) is the companion: used when an nlopt run returns a non-finite or infeasible point.
+import nlopt from 'nlopt-js';
+import highsLoader from 'highs';
+import type { Constraint } from './constraints.js';
+
+export type InnerAlgorithm = 'slsqp' | 'mma' | 'ccsaq';
+
+export interface StepResult {
+  ok: boolean;
+  z: Float64Array;
+  /** Predicted increase of t (layout units). */
+  tau: number;
+  solver: 'nlopt' | 'highs';
+}
+
+/** Relative feasibility slack accepted in the QP solution before the HiGHS fallback is tried. */
+const QP_FEAS_REL = 1e-9;
+const NLOPT_ALGORITHM: Record<InnerAlgorithm, string> = { slsqp: 'LD_SLSQP', mma: 'LD_MMA', ccsaq: 'LD_CCSAQ' };
+const NLOPT_XTOL = 1e-12;
+const NLOPT_CTOL = 1e-14;
+const NLOPT_MAXEVAL: Record<InnerAlgorithm, number> = { slsqp: 200, mma: 400, ccsaq: 200 };
+const NLOPT_MAXTIME = 2;
+
+let highsPromise: ReturnType<typeof highsLoader> | null = null;
+
+/** Load the WebAssembly solvers once per thread. */
+export async function readySolvers(): Promise<void> {
+  await nlopt.ready;
+}
+
+export async function localStep(
+  cons: readonly Constraint[], nFree: number, t: number, delta: number, tMax: number, algorithm: InnerAlgorithm,
+): Promise<StepResult> {
+  const first = nloptStep(cons, nFree, t, delta, tMax, algorithm);
+  if (first.ok && feasible(first, cons, t, delta)) return first;
+  const second = await highsStep(cons, nFree, t, delta, tMax);
+  if (second.ok && feasible(second, cons, t, delta)) return second;
+  return { ok: false, z: new Float64Array(nFree), tau: 0, solver: 'nlopt' };
+}
+
+function nloptStep(
+  cons: readonly Constraint[], nFree: number, t: number, delta: number, tMax: number, algorithm: InnerAlgorithm,
+): StepResult {
+  const s = Math.sqrt(delta);
+  const n = nFree + 1;
+  const opt = new nlopt.Optimize(nlopt.Algorithm[NLOPT_ALGORITHM[algorithm]]!, n);
+  opt.setMinObjective((x, grad) => {
+    let f = 0;
+    for (let i = 0; i < n; i++) {
+      f += 0.5 * x[i]! * x[i]!;
+      if (grad) grad[i] = x[i]!;
+    }
+    f -= s * x[nFree]!;
+    if (grad) grad[nFree] = grad[nFree]! - s;
+    return f;
+  }, NLOPT_XTOL);
+  for (const con of cons) {
+    const h = (con.g - con.c * t) / s;
+    const G = con.grad, c = con.c;
+    opt.addInequalityConstraint((x, grad) => {
+      let v = c * x[nFree]! - h;
+      for (let i = 0; i < nFree; i++) v -= G[i]! * x[i]!;
+      if (grad) {
+        for (let i = 0; i < nFree; i++) grad[i] = -G[i]!;
+        grad[nFree] = c;
+      }
+      return v;
+    }, NLOPT_CTOL);
+  }
+  const lower = new Array<number>(n).fill(-s), upper = new Array<number>(n).fill(s);
+  // τ: no useful lower limit (a step may have to give up some t), capped by t·w_i <= R_i.
+  lower[nFree] = -(t + tMax) / s - 1;
+  upper[nFree] = Math.max(0, (tMax - t) / s);
+  opt.setLowerBounds(lower);
+  opt.setUpperBounds(upper);
+  opt.setMaxeval(NLOPT_MAXEVAL[algorithm]);
+  opt.setMaxtime(NLOPT_MAXTIME);
+  const res = opt.optimize(new Array<number>(n).fill(0));
+  nlopt.GC.flush();
+  const z = new Float64Array(nFree);
+  let finite = res.success && Array.isArray(res.x) && res.x.length === n;
+  if (finite) {
+    for (let i = 0; i < nFree; i++) {
+      z[i] = s * res.x[i]!;
+      if (!Number.isFinite(z[i]!)) finite = false;
+    }
+  }
+  const tau = finite ? s * res.x[nFree]! : 0;
+  return { ok: finite && Number.isFinite(tau), z, tau, solver: 'nlopt' };
+}
+
+/** The same QP by the HiGHS active-set solver (in the unscaled variables). */
+async function highsStep(cons: readonly Constraint[], nFree: number, t: number, delta: number, tMax: number): Promise<StepResult> {
+  const fail: StepResult = { ok: false, z: new Float64Array(nFree), tau: 0, solver: 'highs' };
+  try {
+    highsPromise ??= highsLoader();
+    const highs = await highsPromise;
+    const n = nFree + 1, m = cons.length;
+    const starts = new Int32Array(m + 1), indices: number[] = [], values: number[] = [];
+    const rowLower = new Float64Array(m).fill(-highs.infinity), rowUpper = new Float64Array(m);
+    cons.forEach((con, k) => {
+      for (let i = 0; i < nFree; i++) {
+        if (con.grad[i] !== 0) {
+          indices.push(i);
+          values.push(-con.grad[i]!);
+        }
+      }
+      if (con.c !== 0) {
+        indices.push(nFree);
+        values.push(con.c);
+      }
+      starts[k + 1] = indices.length;
+      rowUpper[k] = con.g - con.c * t;
+    });
+    const colCost = new Float64Array(n);
+    colCost[nFree] = -1;
+    const colLower = new Float64Array(n).fill(-delta), colUpper = new Float64Array(n).fill(delta);
+    colLower[nFree] = -(t + tMax) - 1;
+    colUpper[nFree] = Math.max(0, tMax - t);
+    const hStarts = new Int32Array(n + 1), hIdx = new Int32Array(n), hVal = new Float64Array(n).fill(1 / delta);
+    for (let i = 0; i < n; i++) {
+      hStarts[i + 1] = i + 1;
+      hIdx[i] = i;
+    }
+    return highs.withModel(
+      {
+        numCols: n, numRows: m, colCost, colLower, colUpper, rowLower, rowUpper,
+        matrix: { format: 'csr', numRows: m, numCols: n, starts, indices: Int32Array.from(indices), values: Float64Array.from(values) },
+        hessian: { format: 'triangular', dimension: n, starts: hStarts, indices: hIdx, values: hVal },
+      },
+      (model) => {
+        model.options.set({ output_flag: false });
+        model.run();
+        if (model.getModelStatus() !== highs.constants.modelStatus.optimal) return fail;
+        const x = model.getSolution().colValue;
+        return { ok: true, z: Float64Array.from(x.subarray(0, nFree)), tau: x[nFree]!, solver: 'highs' as const };
+      },
+    );
+  } catch {
+    return fail;
+  }
+}
+
+/** The linearised constraints and the box hold at the returned step (up to QP_FEAS_REL of the scale). */
+function feasible(step: StepResult, cons: readonly Constraint[], t: number, delta: number): boolean {
+  const tol = QP_FEAS_REL * Math.max(t, delta, 1e-300) + 1e-12 * delta;
+  for (const z of step.z) if (!(Math.abs(z) <= delta * (1 + 1e-9))) return false;
+  for (const con of cons) {
+    let v = con.c * step.tau - (con.g - con.c * t);
+    for (let i = 0; i < step.z.length; i++) v -= con.grad[i]! * step.z[i]!;
+    if (!(v <= tol)) return false;
+  }
+  return true;
+}

@@ -1,0 +1,2 @@
+export * from './linking.js';
+export * from './components.js';

@@ -1,0 +1,99 @@
+// The HTML report in a real browser (Debian chromium driven by playwright-core): it must open from
+// file:// with every network request blocked, draw every plot (2D SVG and 3D WebGL) without a console
+// or page error, and show ring names as text even when they contain markup.
+// Outside reference: the browser itself (Debian chromium), as named in docs/references.md.
+import { existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, resolve } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromium, type BrowserContext } from 'playwright-core';
+import { buildReportHtml } from '../../reports/html.js';
+import { loadPlotlySource } from '../../reports/plotlySource.js';
+import { hopfResult, torus3Compare } from '../reportFixture.js';
+
+const CHROMIUM = '/usr/bin/chromium';
+const ARTIFACTS = resolve('test-artifacts');
+
+describe('HTML report in chromium', () => {
+  let context: BrowserContext;
+  let profile: string;
+
+  beforeAll(async () => {
+    if (!existsSync(CHROMIUM)) {
+      throw new Error(`${CHROMIUM} is missing: install it with 'apt-get install -y chromium' (.ci/run does)`);
+    }
+    mkdirSync(ARTIFACTS, { recursive: true });
+    profile = mkdtempSync(join(tmpdir(), 'thickring-chromium-'));
+    context = await chromium.launchPersistentContext(profile, {
+      executablePath: CHROMIUM,
+      headless: true,
+      viewport: { width: 1280, height: 900 },
+      args: [
+        '--headless', '--no-sandbox', '--disable-background-networking', '--no-first-run',
+        '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-component-update', '--disable-sync',
+      ],
+    });
+  });
+
+  afterAll(async () => {
+    await context?.close();
+    if (profile) rmSync(profile, { recursive: true, force: true });
+  });
+
+  const cases = [
+    { name: 'compare result (torus:3, hand-built)', file: 'report.html', shot: 'report.png', result: () => torus3Compare(), plots: 5 },
+    { name: 'inflate result (hopf, hand-built)', file: 'report-hopf.html', shot: 'report-hopf.png', result: () => hopfResult(), plots: 3 },
+  ];
+
+  for (const c of cases) {
+    it(`opens offline and renders every plot: ${c.name}`, async () => {
+      const built = buildReportHtml(c.result(), { plotlySource: loadPlotlySource(), sourceName: 'fixture.json' });
+      expect(built.plots).toHaveLength(c.plots);
+      const path = join(ARTIFACTS, c.file);
+      writeFileSync(path, built.html);
+
+      const page = await context.newPage();
+      const attempted: string[] = [];
+      const problems: string[] = [];
+      // Block everything that is not the file itself (or in-page data/blob URLs) and remember it.
+      await page.route('**/*', (route) => {
+        const url = route.request().url();
+        if (/^(file|data|blob):/.test(url)) return route.continue();
+        attempted.push(url);
+        return route.abort();
+      });
+      page.on('request', (r) => { if (!/^(file|data|blob):/.test(r.url())) attempted.push(r.url()); });
+      page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`); });
+      page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
+      page.on('dialog', (d) => { problems.push(`dialog: ${d.message()}`); void d.dismiss(); });
+
+      // Parsing 5 MB of inline script on a busy two-core machine can take a while: wait on the page's own signal.
+      await page.goto(pathToFileURL(path).href, { waitUntil: 'commit' });
+      await page.waitForSelector('body[data-plots]', { timeout: 280_000 });
+      expect(await page.getAttribute('body', 'data-plots')).toBe('rendered');
+
+      for (const id of built.plots) {
+        const drawn = await page.evaluate((pid) => {
+          const el = document.getElementById(pid);
+          return !!el && (el.querySelector('.main-svg') !== null || el.querySelector('canvas') !== null);
+        }, id);
+        expect(drawn, `plot ${id} rendered`).toBe(true);
+      }
+      // 3D views must have a WebGL canvas, not plotly's "WebGL not supported" notice.
+      const glCanvases = await page.evaluate(() =>
+        Array.from(document.querySelectorAll('.gl-container canvas')).filter((cv) => (cv as HTMLCanvasElement).width > 0).length);
+      expect(glCanvases).toBeGreaterThan(0);
+
+      // Markup in a ring name stays text: no injected element ran.
+      expect(await page.evaluate(() => (window as unknown as { __pwned?: number }).__pwned)).toBeUndefined();
+      expect(await page.locator('img[src="x"]').count()).toBe(0);
+
+      await page.waitForTimeout(500);
+      await page.screenshot({ path: join(ARTIFACTS, c.shot), fullPage: true });
+      await page.close();
+      expect(attempted).toEqual([]);
+      expect(problems).toEqual([]);
+    }, 300_000);
+  }
+});
