@@ -1,5 +1,127 @@
-// Placeholder until the compare command lands; its owner replaces this file.
+// `thickring compare SPEC|LAYOUT [--symmetry cyclic:N|dihedral:N] [--json] [-o result.json]`: the
+// thickest tube with a symmetry imposed and without it, the gain, how each ring moves, and the
+// symmetry-breaking curve. Progress goes to stderr; the result file is what `report` draws.
+import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
-import type { Io } from './io.js';
+import { compare, type CompareProgress } from '../src/analyze/compare.js';
+import { DEFAULT_SWEEP_POINTS } from '../src/analyze/sweep.js';
+import { CAUTIONS } from '../src/fabricate/cautions.js';
+import { InputError } from '../src/model/errors.js';
+import type { CompareResult } from '../src/model/result.js';
+import { resolveSpec } from '../src/model/spec.js';
+import { parseSymmetryOption } from '../src/model/symmetry.js';
+import { formatSummary } from '../reports/summary.js';
+import { writeFileAtomic } from './files.js';
+import { emit, type Io } from './io.js';
+import { addSolveOptions, readSolveOptions, type SolveCliOptions } from './options.js';
 
-export function register(_program: Command, _io: Io): void {}
+/** Most steps of the curve one may ask for (each is a full solve). */
+const MAX_SWEEP_POINTS = 50;
+
+export function register(program: Command, io: Io): void {
+  const cmd = program
+    .command('compare')
+    .description('Symmetric vs symmetry-broken optimum: how much thicker the rings get when the symmetry is given up.')
+    .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N) or layout JSON file')
+    .option('--json', 'print one JSON object (the compare result file) instead of text')
+    .option('-o, --output <file>', 'write the compare result file (format thickring-result/1), e.g. for thickring report')
+    .option('--sweep-points <n>', `steps of the symmetry-breaking curve (default ${DEFAULT_SWEEP_POINTS}; 0 skips it)`);
+  addSolveOptions(cmd).action(async (arg: string, raw: Record<string, unknown>) => {
+    const options = readSolveOptions(raw);
+    const sweepPoints = raw['sweepPoints'] === undefined ? undefined : sweepCount(raw['sweepPoints']);
+    const result = await runCompare(arg, options, sweepPoints, io);
+    const output = raw['output'] as string | undefined;
+    if (output !== undefined) writeFileAtomic(output, JSON.stringify(result, null, 2) + '\n');
+    emit(io, raw['json'] === true, result, () => formatCompare(result, output));
+    if (result.status === 'failed' || result.status === 'infeasible') {
+      throw new Error(`no verified comparison (status ${result.status}): ${result.verification.messages[0] ?? 'see the result'}`);
+    }
+  });
+}
+
+export async function runCompare(arg: string, options: SolveCliOptions, sweepPoints: number | undefined, io: Io): Promise<CompareResult> {
+  const resolved = resolveSpec(arg, options.radii ? { radii: options.radii } : {});
+  const n = resolved.layout.rings.length;
+  const symmetry = options.symmetry === undefined ? undefined : parseSymmetryOption(options.symmetry, n);
+  const progress = progressReporter(io);
+  try {
+    return await compare(resolved, {
+      ...(symmetry !== undefined ? { symmetry } : {}),
+      tubeRatios: ratiosOf(resolved.layout.rings.map((r) => r.tube)),
+      starts: options.starts,
+      workers: options.workers,
+      seed: options.seed,
+      tol: options.tol,
+      ...(sweepPoints !== undefined ? { sweepPoints } : {}),
+      onProgress: progress.update,
+    });
+  } finally {
+    progress.stop();
+  }
+}
+
+export function formatCompare(result: CompareResult, output?: string): string {
+  const lines = [formatSummary(result)];
+  if (output) lines.push('', `Result written to ${output} (draw it with: thickring report ${output} -o report.html)`);
+  lines.push('', 'Cautions:', '- The tube radius is a geometric limit with zero clearance: real rings need clearance (see thickring fabricate).');
+  lines.push(...CAUTIONS.map((c) => `- ${c}`));
+  return lines.join('\n');
+}
+
+// ---- helpers -------------------------------------------------------------------------------------
+
+function sweepCount(v: unknown): number {
+  const text = String(v).trim();
+  const k = Number(text);
+  if (!/^\d+$/.test(text) || k > MAX_SWEEP_POINTS) {
+    throw new InputError(`--sweep-points: '${text}' must be a whole number from 0 to ${MAX_SWEEP_POINTS} (for example --sweep-points 6)`);
+  }
+  return k;
+}
+
+/** Same rule as inflate: layout tubes, when they differ, are ratios r_i = tube · tube_i / largest tube_i. */
+function ratiosOf(tubes: (number | undefined)[]): number[] {
+  const given = tubes.filter((t): t is number => t !== undefined);
+  const maxT = given.length > 0 ? Math.max(...given) : 0;
+  if (!given.some((t) => t !== maxT)) return tubes.map(() => 1);
+  return tubes.map((t) => (t === undefined ? 1 : t / maxT));
+}
+
+const PHASE_LABEL: Record<CompareProgress['phase'], string> = {
+  symmetric: 'symmetric optimum',
+  perturbed: 'broken, from the symmetric optimum',
+  independent: 'broken, independent starts',
+  sweep: 'symmetry-breaking curve',
+};
+
+/** A bar per phase on an interactive stderr, else one line per finished solve. */
+function progressReporter(io: Io): { update: (e: CompareProgress) => void; stop: () => void } {
+  const show = (x: number): string => (Number.isFinite(x) ? String(Number(x.toPrecision(8))) : '-');
+  if (io.interactive) {
+    let bar: cliProgress.SingleBar | null = null;
+    let phase: string | null = null;
+    return {
+      update: (e) => {
+        if (phase !== e.phase) {
+          bar?.stop();
+          phase = e.phase;
+          bar = new cliProgress.SingleBar(
+            { format: `compare: ${PHASE_LABEL[e.phase]} [{bar}] {value}/{total} | best tube {best} (layout units)`, stream: process.stderr, hideCursor: true },
+            cliProgress.Presets.shades_classic,
+          );
+          bar.start(e.total, 0, { best: '-' });
+        }
+        bar?.update(e.done, { best: show(e.bestTube) });
+      },
+      stop: () => bar?.stop(),
+    };
+  }
+  return {
+    update: (e) => io.err(
+      `compare: ${PHASE_LABEL[e.phase]} ${e.done}/${e.total}: ` +
+        (e.epsilon !== undefined ? `departure ≤ ${show(e.epsilon)}, ` : '') +
+        `tube ${show(e.tube)}, best ${show(e.bestTube)} (layout units)`,
+    ),
+    stop: () => {},
+  };
+}

@@ -50,7 +50,8 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io):
   if (options.symmetry === undefined && symmetry) {
     notes.push(`Symmetry ${symmetry.type}:${symmetry.order} imposed from the layout file (override with --symmetry none).`);
   }
-  const tubeRatios = ratiosOf(layout.rings.map((r) => r.tube), notes);
+  notes.push(...resolved.notes);
+  const tubeRatios = resolved.tubeRatios;
   const problem: InflateProblem = {
     rings: layout.rings.map(({ tube: _t, ...r }) => r),
     tubeRatios,
@@ -89,6 +90,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const r = run.result;
   const u = unitsOf(r);
   const L = (x: number): string => `${num(x)} ${u}`;
+  const scale = Math.max(...r.rings.map((x) => x.radius));
   const lines: string[] = [];
   lines.push(`thickring inflate ${r.spec}: ${r.rings.length} rings, lengths in ${u}`);
   lines.push(`Status: ${r.status}${r.certificate.certified ? ' (certified optimum)' : ''}`);
@@ -121,7 +123,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   lines.push('Rings');
   lines.push(table(
     ['name', `centre (${u})`, 'normal (unit)', `core R (${u})`, `tube r (${u})`, 'aspect ratio (dimensionless)'],
-    r.rings.map((x) => [x.name, vec(x.center), vec(x.normal), num(x.radius), num(x.tube), num(x.aspectRatio)]),
+    r.rings.map((x) => [x.name, vec(x.center, scale), vec(x.normal), num(x.radius), num(x.tube), num(x.aspectRatio)]),
   ));
   if (r.contacts.length > 0) {
     lines.push('');
@@ -130,7 +132,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
       ['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''],
       r.contacts.map((x) => [
         `${r.rings[x.a]?.name ?? x.a}-${r.rings[x.b]?.name ?? x.b}`,
-        vec(x.onA), vec(x.onB), num(x.distance), num(x.force), x.continuum ? 'continuum representative' : '',
+        vec(x.onA, scale), vec(x.onB, scale), num(x.distance), num(x.force), x.continuum ? 'continuum representative' : '',
       ]),
     ));
   }
@@ -152,15 +154,6 @@ export function formatInflate(run: InflateRun, output?: string): string {
 }
 
 // ---- helpers -------------------------------------------------------------------------------------
-
-/** Layout tubes, when they differ, are ratios r_i = tube · tube_i / largest tube_i (as in measure). */
-function ratiosOf(tubes: (number | undefined)[], notes: string[]): number[] {
-  const given = tubes.filter((t): t is number => t !== undefined);
-  const maxT = given.length > 0 ? Math.max(...given) : 0;
-  if (!given.some((t) => t !== maxT)) return tubes.map(() => 1);
-  notes.push('Rings carry different tube values: they are used as ratios (r_i = tube * tube_i / largest tube_i), not as sizes.');
-  return tubes.map((t) => (t === undefined ? 1 : t / maxT));
-}
 
 interface Progress {
   update: (e: StartProgress) => void;
@@ -211,8 +204,12 @@ function sci(x: number): string {
   return x.toExponential(2);
 }
 
-function vec(v: readonly number[]): string {
-  return v.map((x) => String(Number(x.toPrecision(6)))).join(', ');
+/** Components below DISPLAY_ZERO_REL of the vector's scale are round-off of an exact 0: shown as 0. */
+const DISPLAY_ZERO_REL = 1e-12;
+
+function vec(v: readonly number[], scale = 1): string {
+  const s = Math.max(scale, ...v.map(Math.abs));
+  return v.map((x) => (Math.abs(x) < DISPLAY_ZERO_REL * s ? '0' : String(Number(x.toPrecision(6))))).join(', ');
 }
 
 function table(head: string[], rows: string[][]): string {

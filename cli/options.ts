@@ -1,10 +1,10 @@
 // Options shared by the solving commands (inflate, compare): --radii, --symmetry, --starts, --workers,
 // --seed, --tol. Bad values are InputError (exit 2) naming the option, what was expected and an example.
 import type { Command } from 'commander';
-import { availableParallelism } from 'node:os';
 import { InputError } from '../src/model/errors.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
 import type { Layout, Symmetry } from '../src/model/types.js';
+import { defaultWorkers } from '../src/optimize/pool.js';
 
 export interface SolveCliOptions {
   radii?: number[];
@@ -42,7 +42,7 @@ export function addSolveOptions(cmd: Command): Command {
 export function readSolveOptions(raw: Record<string, unknown>): SolveCliOptions {
   const starts = raw['starts'] === undefined ? DEFAULT_STARTS : wholeNumber(raw['starts'], '--starts', 1, MAX_STARTS, '8');
   const workers = raw['workers'] === undefined
-    ? Math.max(1, Math.min(starts, availableParallelism()))
+    ? defaultWorkers(starts)
     : wholeNumber(raw['workers'], '--workers', 1, MAX_WORKERS, '2');
   const seed = raw['seed'] === undefined ? DEFAULT_SEED : wholeNumber(raw['seed'], '--seed', 0, MAX_SEED, '42');
   const tol = raw['tol'] === undefined ? DEFAULT_TOL : tolerance(raw['tol']);

@@ -47,7 +47,8 @@ export function formatPlay(r: PlayReport, file: string): string {
   lines.push(`Second order: ${r.secondOrder.outcome} — ${r.secondOrder.detail}`);
   if (r.secondOrder.direction) lines.push(`  direction: ${r.secondOrder.direction.description}`);
   if (r.secondOrder.thickenedTube !== null) {
-    lines.push(`  following it reaches a common tube of ${fmt(r.secondOrder.thickenedTube)} ${u} (from ${fmt(r.tube)} ${u})`);
+    const gain = r.secondOrder.thickenedTube - r.tube;
+    lines.push(`  following it reaches a common tube of ${r.secondOrder.thickenedTube.toPrecision(8)} ${u} (from ${r.tube.toPrecision(8)} ${u}, +${fmt(gain)} ${u}); re-inflate from there without symmetry for the full gain`);
   }
   lines.push('');
   lines.push(`Play of each ring alone, others held still, at tube ${fmt(r.play.tube)} ${u} (translations in ${u}, turns in degrees; spin is always free; ">" = free beyond the cap)`);

@@ -271,7 +271,10 @@ function playSection(p: PlayView): { title: string; lead: string; body: string }
     title: 'Play: locked or rattling?',
     lead: `${badge(p.locked ? 'locked' : 'has play', p.locked ? 'ok' : 'warn')} ${h(p.headline)}`,
     body: `<table class="figures"><tbody>${rows}</tbody></table>` +
-      p.notes.map((n) => `<p class="note">${h(n)}</p>`).join(''),
+      (p.notes.length > 0
+        ? `<details><summary>${p.notes.length} note${p.notes.length === 1 ? '' : 's'} on free motions and the analysis</summary>` +
+          p.notes.map((n) => `<p class="note">${h(n)}</p>`).join('') + '</details>'
+        : ''),
   };
 }
 

@@ -25,6 +25,8 @@ export interface StartGroup {
 
 /** Opacity of the tubes in "glass" mode: the cores and struts inside stay visible. */
 const GLASS_OPACITY = 0.38;
+/** Iteration histories longer than this are drawn on a log axis. */
+const LOG_AXIS_ITERATIONS = 60;
 /** Grid-point budget for all tori together, so large weaves stay responsive. */
 const MESH_VERTEX_BUDGET = 80_000;
 
@@ -208,9 +210,11 @@ export function historyPlot(groups: StartGroup[], unit: string, id: string): Plo
     });
   }
   if (data.length === 0) return null;
+  // One long stalled start would squash the others into the left edge: use a log axis then.
+  const longest = Math.max(...groups.flatMap((g) => g.starts.map((s) => s.history?.length ?? 0)));
   const layout = {
     ...baseLayout(),
-    xaxis: axis({ title: { text: 'outer iteration (count)' } }),
+    xaxis: axis({ title: { text: `outer iteration (count${longest > LOG_AXIS_ITERATIONS ? ', log scale' : ''})` }, ...(longest > LOG_AXIS_ITERATIONS ? { type: 'log' } : {}) }),
     yaxis: axis({ title: { text: `tube radius (${u})` } }),
   };
   return { id, data, layout };

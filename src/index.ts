@@ -2,4 +2,12 @@
 export * from './model/types.js';
 export * from './model/result.js';
 export { InputError } from './model/errors.js';
-export { ringDistance, type RingDistance, type Contact } from './kernel/index.js';
+export { parseLayout, layoutFromRings, LAYOUT_FORMAT } from './model/layout.js';
+export { readResultFile, parseResult } from './model/resultFile.js';
+export {
+  ringDistance, circleContacts, closestPointOnCircle, pointCircleDistance, strutGradient,
+  CONTACT_STRIDE, MAX_CONTACTS, type RingDistance, type Contact, type ContinuumKind,
+} from './kernel/index.js';
+export { linkingNumber, linkingMatrix, connectedness } from './topology/index.js';
+export { measureLayout } from './analyze/measure.js';
+export * as fabricate from './fabricate/index.js';

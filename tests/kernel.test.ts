@@ -5,7 +5,8 @@ import type { Circle, Vec3 } from '../src/model/types.js';
 import { refMinima, refPoint, refPointCircle2, refF, refAngle } from './reference/bruteCircle.js';
 import { applyRotation, randomRotation, randomUnit, rng } from './reference/rng.js';
 
-const circle = (center: number[], normal: number[], radius: number): Circle => ({ center, normal, radius });
+interface TCircle extends Circle { center: number[]; normal: number[] }
+const circle = (center: number[], normal: number[], radius: number): TCircle => ({ center, normal, radius });
 const dist3 = (a: ArrayLike<number>, b: ArrayLike<number>) => Math.hypot(a[0]! - b[0]!, a[1]! - b[1]!, a[2]! - b[2]!);
 
 describe('closed forms (Eberly, "Distance to Circles in 3D"; references.md)', () => {
@@ -110,7 +111,7 @@ describe('closed forms (Eberly, "Distance to Circles in 3D"; references.md)', ()
 });
 
 /** Random pairs from several families, most of them near a degenerate arrangement. */
-function randomPair(r: () => number, i: number): [Circle, Circle] {
+function randomPair(r: () => number, i: number): [TCircle, TCircle] {
   const family = i % 6;
   const a = circle([2 * r() - 1, 2 * r() - 1, 2 * r() - 1], randomUnit(r), 0.3 + r());
   let b = circle([2 * r() - 1, 2 * r() - 1, 2 * r() - 1], randomUnit(r), 0.3 + r());
@@ -194,7 +195,7 @@ describe('invariance: rotation, translation, scaling by 1e±3, swapping A and B'
       const M = randomRotation(r);
       const t = [10 * r() - 5, 10 * r() - 5, 10 * r() - 5];
       const k = [1e-3, 1, 1e3][i % 3]!;
-      const tr = (c: Circle): Circle => {
+      const tr = (c: TCircle): TCircle => {
         const p = applyRotation(M, c.center);
         return circle([k * (p[0] + t[0]!), k * (p[1] + t[1]!), k * (p[2] + t[2]!)], applyRotation(M, c.normal), k * c.radius);
       };
@@ -237,7 +238,7 @@ describe('strut gradient (envelope theorem) against central finite differences o
       const g = new Float64Array(14);
       strutGradient(c0.onA, c0.onB, a.center, a.radius, b.center, b.radius, g);
       const h = 1e-6;
-      const dAt = (mod: (aa: Circle, bb: Circle) => void): number => {
+      const dAt = (mod: (aa: TCircle, bb: TCircle) => void): number => {
         const aa = circle([...a.center as number[]], [...a.normal as number[]], a.radius);
         const bb = circle([...b.center as number[]], [...b.normal as number[]], b.radius);
         mod(aa, bb);

@@ -217,3 +217,42 @@ describe('invariance under a rigid motion of the whole layout (house style: ever
     }));
   });
 });
+
+describe('a periodic chain (lattice): copies in neighbouring cells count', () => {
+  // Alternating chain of radius-1 rings: A flat at 0, B upright (xz-plane) at (d, 0, 0), period (2d, 0, 0).
+  // With B centred at c on the x-axis (1 < c < 2), its points (c + cos φ, 0, sin φ) have squared distance
+  // (c - 1)² + 1 + 2 (c - 1) cos φ to A's core, smallest at cos φ = -1: distance 2 - c. B and its own copy
+  // 2d away are coplanar circles, 2d - 2 apart. So with d = 4/3 and tube t, B moving by s along -x meets the
+  // next A (2d away) at clearance 2/3 - s - 2t, and along +x meets A and its own copy at the same clearance:
+  // play 2/3 - 2t both ways. Without the copies, B could go -x until its centre is 2t from A's: 5/6 at t = 1/4.
+  const d = 4 / 3, t = 0.25;
+  const cell: RingSpec[] = [
+    { name: 'A', center: [0, 0, 0], normal: [0, 0, 1], radius: 1 },
+    { name: 'B', center: [d, 0, 0], normal: [0, 1, 0], radius: 1 },
+  ];
+  const periodic = { ...resultOf(cell, t, 'chain'), lattice: { vectors: [[2 * d, 0, 0] as Vec3] } };
+
+  it('limits the play of B by the next cell, as the closed form says, and matches the unrolled chain', async () => {
+    const report = await analyzePlay(periodic);
+    const b = report.play.rings[1]!;
+    const plusX = b.entries.find((e) => e.direction === '+x')!, minusX = b.entries.find((e) => e.direction === '-x')!;
+    expect(plusX.amount).toBeCloseTo(2 / 3 - 2 * t, 6);
+    expect(minusX.amount).toBeCloseTo(2 / 3 - 2 * t, 6);
+    const alone = await analyzePlay(resultOf(cell, t));
+    expect(alone.play.rings[1]!.entries.find((e) => e.direction === '-x')!.amount).toBeCloseTo(5 / 6, 6);
+    // The same chain written out: every neighbour of B within reach, no lattice.
+    const unrolled: RingSpec[] = [-2, -1, 0, 1, 2].flatMap((k) => cell.map((r) => ({
+      ...r, name: `${r.name}${k}`, center: [r.center[0] + 2 * d * k, 0, 0] as Vec3,
+    })));
+    const flat = await analyzePlay(resultOf(unrolled, t));
+    const bFlat = flat.play.rings.find((r) => r.name === 'B0')!;
+    b.entries.forEach((e, j) => expect(bFlat.entries[j]!.amount).toBeCloseTo(e.amount, 6));
+  });
+
+  it('counts periodic motions modulo translations and the turn about the chain axis', async () => {
+    // No contact at t = 1/4; 2 rings x 5 coordinates, minus 3 translations and 1 turn about the period.
+    const report = await analyzePlay(periodic);
+    expect(report.mobility.activeContacts).toBe(0);
+    expect(report.freeDimension).toBe(2 * 5 - 4);
+  });
+});

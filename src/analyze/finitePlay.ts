@@ -5,7 +5,8 @@
 // at most R_i per radian. Stepping by c/Lipschitz ("sphere tracing") therefore never steps over a contact;
 // the first touch is then bracketed and bisected.
 import { ringDistance } from '../kernel/index.js';
-import type { Vec3 } from '../model/types.js';
+import type { Lattice, Vec3 } from '../model/types.js';
+import { copyName, imagePairs, shifted } from './mobilityPairs.js';
 import { planeBasis } from '../model/vec.js';
 import { moveRing, type RingPose } from './mobilityMotion.js';
 
@@ -52,6 +53,8 @@ export interface PlayOptions {
   rotationCapDegrees?: number;
   /** Overlap allowed at the start (optimizer rounding), layout units. */
   touchTol: number;
+  /** Translational periodicity of a weave: every copy in nearby cells (even the ring's own) stays put. */
+  lattice?: Lattice | null;
 }
 
 /** Step budget per direction; sliding along a contact is the slow case. */
@@ -72,11 +75,12 @@ export function finitePlay(rings: readonly RingPose[], tube: number, options: Pl
     rotationCapDegrees,
     rings: rings.map((r, i) => {
       const [u, v] = planeBasis(r.normal);
+      const others = obstacles(rings, i, options.lattice ?? null, translationCap + r.radius);
       const entries: PlayEntry[] = [];
-      for (const [label, axis] of axesX) entries.push(ringPlay(rings, i, 'translate', axis, translationCap, options.touchTol, label));
+      for (const [label, axis] of axesX) entries.push(ringPlay(rings, i, 'translate', axis, translationCap, options.touchTol, label, others));
       const turns: [string, Vec3][] = [['+u', u], ['-u', [-u[0], -u[1], -u[2]]], ['+v', v], ['-v', [-v[0], -v[1], -v[2]]]];
-      for (const [label, axis] of turns) entries.push(ringPlay(rings, i, 'rotate', axis, rotationCapDegrees, options.touchTol, label));
-      return { name: r.name, axes: { u, v }, entries, spin: 'free' as const, clearance: clearanceOf(rings, i, r) };
+      for (const [label, axis] of turns) entries.push(ringPlay(rings, i, 'rotate', axis, rotationCapDegrees, options.touchTol, label, others));
+      return { name: r.name, axes: { u, v }, entries, spin: 'free' as const, clearance: clearanceWho(others, r).gap };
     }),
   };
 }
@@ -84,9 +88,11 @@ export function finitePlay(rings: readonly RingPose[], tube: number, options: Pl
 /**
  * How far ring i moves along one rigid motion (translation along unit `axis`, or a turn about the axis
  * through its centre) before its tube touches another: layout units or degrees, at most `cap`.
+ * `others` are the rings it can meet (default: every other ring, no lattice).
  */
 export function ringPlay(
   rings: readonly RingPose[], i: number, kind: PlayKind, axis: Vec3, cap: number, touchTol: number, label = '',
+  others: readonly RingPose[] = rings.filter((_, j) => j !== i),
 ): PlayEntry {
   const ring = rings[i]!;
   const Rmax = Math.max(...rings.map((r) => r.radius));
@@ -97,7 +103,7 @@ export function ringPlay(
     const moved = kind === 'translate'
       ? moveRing(ring, [axis[0] * s, axis[1] * s, axis[2] * s], [0, 0, 0])
       : moveRing(ring, [0, 0, 0], [axis[0] * s, axis[1] * s, axis[2] * s]);
-    return clearanceWho(rings, i, moved);
+    return clearanceWho(others, moved);
   };
   const resolution = RESOLUTION_REL * Rmax / lip;
   const start = at(0);
@@ -105,7 +111,7 @@ export function ringPlay(
   const floor = Math.min(0, start.gap) - NOISE_REL * Rmax;
   const base = { direction: label, kind, axis, budgetExhausted: false };
   const amount = (s: number): number => (kind === 'translate' ? s : (s * 180) / Math.PI);
-  if (start.gap < -touchTol) return { ...base, amount: 0, capped: false, touches: nameOf(rings, start.who) };
+  if (start.gap < -touchTol) return { ...base, amount: 0, capped: false, touches: nameOf(others, start.who) };
   // The largest step taken while sliding on a contact: a quarter of the thinnest tube, so a jump cannot
   // cross a whole tube.
   const thin = Math.min(...rings.map((r) => r.tube).filter((t) => t > 0), Rmax);
@@ -134,21 +140,37 @@ export function ringPlay(
         who = gm.who;
       }
     }
-    return { ...base, amount: amount(lo), capped: false, touches: nameOf(rings, who) };
+    return { ...base, amount: amount(lo), capped: false, touches: nameOf(others, who) };
   }
   return { ...base, amount: amount(s), capped: false, touches: null, budgetExhausted: true };
 }
 
-function clearanceOf(rings: readonly RingPose[], i: number, ring: RingPose): number {
-  return clearanceWho(rings, i, ring).gap;
+/**
+ * The rings ring i can meet within `reach` of its centre: the others of the cell and, with a lattice, the
+ * copies of every ring (its own too) in nearby cells, named with their shift.
+ */
+function obstacles(rings: readonly RingPose[], i: number, lattice: Lattice | null, reach: number): RingPose[] {
+  const maxTube = Math.max(0, ...rings.map((r) => r.tube));
+  const out: RingPose[] = [];
+  for (const p of imagePairs(rings, lattice, reach + 2 * maxTube)) {
+    const copy = (j: number, o: Vec3): void => {
+      out.push({ ...shifted(rings[j]!, o), name: copyName(rings[j]!.name, o) });
+    };
+    const minus: Vec3 = [-p.offset[0], -p.offset[1], -p.offset[2]];
+    if (p.a === i && p.b === i) {
+      copy(i, p.offset);
+      copy(i, minus);
+    } else if (p.a === i) copy(p.b, p.offset);
+    else if (p.b === i) copy(p.a, minus);
+  }
+  return out;
 }
 
-/** Smallest clearance between `moved` (ring i after a motion) and every other ring, and which ring. */
-function clearanceWho(rings: readonly RingPose[], i: number, moved: RingPose): { gap: number; who: number } {
+/** Smallest clearance between `moved` and every ring of `others`, and which one. */
+function clearanceWho(others: readonly RingPose[], moved: RingPose): { gap: number; who: number } {
   let gap = Infinity, who = -1;
-  for (let j = 0; j < rings.length; j++) {
-    if (j === i) continue;
-    const o = rings[j]!;
+  for (let j = 0; j < others.length; j++) {
+    const o = others[j]!;
     const sum = moved.tube + o.tube;
     // Bounding spheres first: cores farther apart than this cannot be the nearest.
     const dc = Math.hypot(moved.center[0] - o.center[0], moved.center[1] - o.center[1], moved.center[2] - o.center[2]);

@@ -7,14 +7,18 @@
 import { loadLpSolver, solveLp, type LpProblem, type LpRow } from './mobilityLp.js';
 import { activeStruts, strutRow, type ActiveSet } from './mobilityContacts.js';
 import { motionFrame, restrictToFree, splitSpan, type MotionFrame, type RingPose } from './mobilityMotion.js';
+import { imagePairs, type ImagePair } from './mobilityPairs.js';
+import type { Lattice } from '../model/types.js';
 
 export interface FirstOrder {
   status: 'ok' | 'lp-failed';
   frame: MotionFrame;
   active: ActiveSet;
+  /** Pairs (with lattice copies) that can touch at this tube. */
+  pairs: ImagePair[];
   /** Unit-length constraint rows a_k in free coordinates z, one per active strut (same order). */
   rows: number[][];
-  /** Length of each strut's gradient before normalising (dimensionless). */
+  /** Length of each strut's gradient before normalising (dimensionless; 1 for a zero row). */
   rowNorms: number[];
   /** Dimension of span(C): every first-order motion beyond spins and whole-set motions. */
   freeDimension: number;
@@ -38,24 +42,38 @@ export interface FirstOrder {
 export interface MobilityOptions {
   /** A contact with gap d - r_a - r_b <= activeTol (layout units) is active. */
   activeTol: number;
+  /** Translational periodicity of a weave: copies in nearby cells count as neighbours. */
+  lattice?: Lattice | null;
 }
 
 /** Singular values (rows normalised to length 1) below this count as zero: the contact rows are
  * exact to about 1e-9 for optimizer output, a genuine constraint is far above 1e-6. */
 export const RANK_TOL = 1e-6;
-/** LP slack above this (rows normalised, box |z| <= 1) means a contact really opens. */
-export const OPEN_TOL = 1e-7;
+/** LP slack above this (rows normalised, box |z| <= 1) means a contact really opens; it matches RANK_TOL,
+ * since an optimizer's output is critical only to about its own tolerance. */
+export const OPEN_TOL = 1e-6;
+/** Gradient rows shorter than this (dimensionless) are zero: the contact is stationary at first order. */
+const ZERO_ROW = 1e-9;
+/** A self-stress may leave this much unbalanced (max norm, rows normalised, Σ λ = 1), for the same reason. */
+export const STRESS_TOL = 1e-6;
 
 export async function firstOrderMobility(rings: readonly RingPose[], options: MobilityOptions): Promise<FirstOrder> {
   await loadLpSolver();
-  const frame = motionFrame(rings);
-  const active = activeStruts(rings, options.activeTol);
+  const lattice = options.lattice ?? null;
+  const frame = motionFrame(rings, lattice);
+  const maxTube = Math.max(0, ...rings.map((r) => r.tube));
+  const pairs = imagePairs(rings, lattice, 2 * maxTube + options.activeTol);
+  const active = activeStruts(rings, options.activeTol, pairs);
   const m = frame.free.length;
   const raw = active.struts.map((s) => restrictToFree(frame, strutRow(s, rings, frame)));
+  // A contact whose distance no (periodic) motion changes to first order, e.g. a ring against its own copy
+  // in the next cell, gets a zero row: it constrains only at second order. Its norm is taken as 1 so it
+  // still enters the stress form and the correction LP (q_k >= margin) with unit weight.
   const rowNorms = raw.map((g) => Math.sqrt(dotN(g, g)));
-  const rows = raw.map((g, k) => (rowNorms[k]! > 0 ? g.map((v) => v / rowNorms[k]!) : g));
+  const rows = raw.map((g, k) => (rowNorms[k]! > ZERO_ROW ? g.map((v) => v / rowNorms[k]!) : g.map(() => 0)));
+  rowNorms.forEach((v, k) => { if (!(v > ZERO_ROW)) rowNorms[k] = 1; });
   const K = rows.length;
-  const base = { frame, active, rows, rowNorms };
+  const base = { frame, active, rows, rowNorms, pairs };
   if (m === 0 || K === 0) {
     const all = identity(m);
     return {
@@ -94,9 +112,12 @@ export async function firstOrderMobility(rings: readonly RingPose[], options: Mo
 
   let stress: number[] | null = null;
   if (openingDirection === null) {
-    const st = await solveLp(stressLp(rows, m, implicit));
-    if (st.status === 'optimal') {
-      stress = rows.map((_, k) => Math.max(0, st.values.get(`l${k}`) ?? 0));
+    const balance = await solveLp(stressLp(rows, m, implicit, null));
+    const residual = balance.status === 'optimal' ? balance.values.get('r') ?? Infinity : Infinity;
+    if (residual <= STRESS_TOL) {
+      const st = await solveLp(stressLp(rows, m, implicit, Math.max(2 * residual, 1e-14)));
+      const sol = st.status === 'optimal' ? st : balance;
+      stress = rows.map((_, k) => Math.max(0, sol.values.get(`l${k}`) ?? 0));
       const sum = stress.reduce((a, b) => a + b, 0);
       stress = sum > 0 ? stress.map((v) => v / sum) : null;
     }
@@ -134,23 +155,32 @@ function openAllLp(rows: number[][], m: number): LpProblem {
 }
 
 /**
- * A self-stress with as much weight as possible on every implicit contact:
- * max t s.t. Σ λ_k a_k = 0, Σ λ_k = 1, λ_k >= t on E, λ_k = 0 off E.
+ * Self-stress on the implicit contacts, Σ λ_k = 1, λ_k = 0 off E. With residual = null: minimise the
+ * imbalance r = max_a |Σ λ_k a_k[a]|. With a residual: keep r <= residual and put as much weight as
+ * possible on every implicit contact (max t, λ_k >= t on E).
  */
-function stressLp(rows: number[][], m: number, implicit: boolean[]): LpProblem {
+function stressLp(rows: number[][], m: number, implicit: boolean[], residual: number | null): LpProblem {
   const lpRows: LpRow[] = [];
   for (let a = 0; a < m; a++) {
-    lpRows.push({ terms: rows.map((r, k) => [`l${k}`, implicit[k] ? r[a]! : 0] as [string, number]), sense: '=', rhs: 0 });
+    const terms = rows.map((r, k) => [`l${k}`, implicit[k] ? r[a]! : 0] as [string, number]);
+    lpRows.push({ terms: [...terms, ['r', -1]], sense: '<=', rhs: 0 });
+    lpRows.push({ terms: [...terms, ['r', 1]], sense: '>=', rhs: 0 });
   }
   lpRows.push({ terms: rows.map((_, k) => [`l${k}`, 1] as [string, number]), sense: '=', rhs: 1 });
-  rows.forEach((_, k) => {
-    if (implicit[k]) lpRows.push({ terms: [[`l${k}`, 1], ['t', -1]], sense: '>=', rhs: 0 });
-  });
+  if (residual !== null) {
+    rows.forEach((_, k) => {
+      if (implicit[k]) lpRows.push({ terms: [[`l${k}`, 1], ['t', -1]], sense: '>=', rhs: 0 });
+    });
+  }
   return {
-    sense: 'maximize',
-    objective: [['t', 1]],
+    sense: residual === null ? 'minimize' : 'maximize',
+    objective: residual === null ? [['r', 1]] : [['t', 1]],
     rows: lpRows,
-    bounds: [...rows.map((_, k) => [`l${k}`, 0, implicit[k] ? 1 : 0] as [string, number, number]), ['t', -Infinity, 1]],
+    bounds: [
+      ...rows.map((_, k) => [`l${k}`, 0, implicit[k] ? 1 : 0] as [string, number, number]),
+      ['r', 0, residual === null ? Infinity : residual],
+      ...(residual === null ? [] : [['t', -Infinity, 1] as [string, number, number]]),
+    ],
   };
 }
 
@@ -181,7 +211,7 @@ function independentCompletion(base: number[][], candidates: number[][], count: 
   return out;
 }
 
-function failed(base: { frame: MotionFrame; active: ActiveSet; rows: number[][]; rowNorms: number[] }, reversible: number[][], detail: string): FirstOrder {
+function failed(base: { frame: MotionFrame; active: ActiveSet; rows: number[][]; rowNorms: number[]; pairs: ImagePair[] }, reversible: number[][], detail: string): FirstOrder {
   return {
     ...base, status: 'lp-failed', freeDimension: reversible.length, reversible, oneWay: [], span: reversible,
     implicit: base.rows.map(() => true), openingMargin: null, openingDirection: null, stress: null, detail,

@@ -6,11 +6,14 @@ import { closestPointOnCircle, pointCircleDistance, ringDistance, strutGradient 
 import type { Vec3 } from '../model/types.js';
 import { planeBasis } from '../model/vec.js';
 import { COORDS_PER_RING, type MotionFrame, type RingPose } from './mobilityMotion.js';
+import { shifted, type ImagePair } from './mobilityPairs.js';
 
 /** One closest pair between rings a and b that is (nearly) touching. */
 export interface Strut {
   a: number;
+  /** Ring b, or its copy translated by `offset` (a lattice); pB lies on that copy. */
   b: number;
+  offset: Vec3;
   pA: Vec3;
   pB: Vec3;
   /** Core-to-core distance of the pair (layout units). */
@@ -19,13 +22,14 @@ export interface Strut {
   gap: number;
   /** 'strut': a local minimum found by the kernel; 'continuum': one sample of a touching circle. */
   kind: 'strut' | 'continuum';
-  /** For a continuum sample: the ring whose material point pA or pB was sampled (a or b). */
-  sampleOn?: number;
+  /** For a continuum sample: which end (pA on ring a, or pB on ring b's copy) was sampled. */
+  sampleOn?: 'a' | 'b';
 }
 
 export interface ContinuumPair {
   a: number;
   b: number;
+  offset: Vec3;
   /** 'coaxial' | 'on-tube' from the kernel, or 'near-continuum' when the kernel saw isolated minima
    * but the whole circle is within the active tolerance. */
   kind: string;
@@ -45,76 +49,75 @@ export interface ActiveSet {
 export const CONTINUUM_SAMPLES = 64;
 
 /** Every pair closer than r_a + r_b + activeTol contributes its closest pairs. */
-export function activeStruts(rings: readonly RingPose[], activeTol: number): ActiveSet {
+export function activeStruts(rings: readonly RingPose[], activeTol: number, pairs: readonly ImagePair[]): ActiveSet {
   const struts: Strut[] = [];
   const continua: ContinuumPair[] = [];
   let minGap = Infinity;
-  for (let a = 0; a < rings.length; a++) {
-    for (let b = a + 1; b < rings.length; b++) {
-      const A = rings[a]!, B = rings[b]!;
-      const sum = A.tube + B.tube;
-      const rd = ringDistance(A, B);
-      minGap = Math.min(minGap, rd.distance - sum);
-      if (rd.distance - sum > activeTol) continue;
-      // A continuum reported by the kernel, or one hidden by rounding in an optimizer's output. Both rings
-      // may lie on each other's tube (the tight Hopf link): each such side gives its own family of pairs.
-      const sides = flatSides(A, B, activeTol, rd.continuum !== null);
-      if (sides.length > 0) {
-        for (const side of sides) {
-          const flat = side === 'A' ? a : b;
-          const X = side === 'A' ? A : B;
-          const Y = side === 'A' ? B : A;
-          const q = new Float64Array(3);
-          for (let k = 0; k < CONTINUUM_SAMPLES; k++) {
-            const p = circlePoint(X, (2 * Math.PI * k) / CONTINUUM_SAMPLES);
-            const d = closestPointOnCircle(p, Y.center, Y.normal, Y.radius, q);
-            const onY: Vec3 = [q[0]!, q[1]!, q[2]!];
-            struts.push({
-              a, b,
-              pA: side === 'A' ? p : onY,
-              pB: side === 'A' ? onY : p,
-              distance: d,
-              gap: d - sum,
-              kind: 'continuum',
-              sampleOn: flat,
-            });
-          }
-          continua.push({
-            a, b,
-            kind: rd.continuum !== null ? rd.continuum.kind : 'near-continuum',
-            sampled: flat,
-            samples: CONTINUUM_SAMPLES,
+  for (const { a, b, offset } of pairs) {
+    const A = rings[a]!, B = shifted(rings[b]!, offset);
+    const sum = A.tube + B.tube;
+    const rd = ringDistance(A, B);
+    minGap = Math.min(minGap, rd.distance - sum);
+    if (rd.distance - sum > activeTol) continue;
+    // A continuum reported by the kernel, or one hidden by rounding in an optimizer's output. Both rings
+    // may lie on each other's tube (the tight Hopf link): each such side gives its own family of pairs.
+    const sides = flatSides(A, B, activeTol, rd.continuum !== null);
+    if (sides.length > 0) {
+      for (const side of sides) {
+        const flat = side === 'A' ? a : b;
+        const X = side === 'A' ? A : B;
+        const Y = side === 'A' ? B : A;
+        const q = new Float64Array(3);
+        for (let k = 0; k < CONTINUUM_SAMPLES; k++) {
+          const p = circlePoint(X, (2 * Math.PI * k) / CONTINUUM_SAMPLES);
+          const d = closestPointOnCircle(p, Y.center, Y.normal, Y.radius, q);
+          const onY: Vec3 = [q[0]!, q[1]!, q[2]!];
+          struts.push({
+            a, b, offset,
+            pA: side === 'A' ? p : onY,
+            pB: side === 'A' ? onY : p,
+            distance: d,
+            gap: d - sum,
+            kind: 'continuum',
+            sampleOn: side === 'A' ? 'a' : 'b',
           });
         }
-        continue;
+        continua.push({
+          a, b, offset,
+          kind: rd.continuum !== null ? rd.continuum.kind : 'near-continuum',
+          sampled: flat,
+          samples: CONTINUUM_SAMPLES,
+        });
       }
-      for (const c of rd.contacts) {
-        if (c.distance - sum > activeTol) continue;
-        struts.push({ a, b, pA: c.onA, pB: c.onB, distance: c.distance, gap: c.distance - sum, kind: 'strut' });
-      }
+      continue;
+    }
+    for (const c of rd.contacts) {
+      if (c.distance - sum > activeTol) continue;
+      struts.push({ a, b, offset, pA: c.onA, pB: c.onB, distance: c.distance, gap: c.distance - sum, kind: 'strut' });
     }
   }
-  return { struts, continua, minGap: rings.length < 2 ? Infinity : minGap };
+  return { struts, continua, minGap };
 }
 
 /**
  * First-order change of the strut's distance per unit of each reduced coordinate (a row of length
  * frame.dim). Uses the kernel's envelope-theorem gradient: at a closest pair the pair's own sliding
- * does not change the distance, so only the rigid motions of the two rings count.
+ * does not change the distance, so only the rigid motions of the two rings count. A lattice copy moves
+ * with its ring, so its part adds to that ring's coordinates (both parts, for a ring against its own copy).
  */
 export function strutRow(s: Strut, rings: readonly RingPose[], frame: MotionFrame): number[] {
-  const A = rings[s.a]!, B = rings[s.b]!;
+  const A = rings[s.a]!, B = shifted(rings[s.b]!, s.offset);
   const g = new Float64Array(14);
   strutGradient(s.pA, s.pB, A.center, A.radius, B.center, B.radius, g);
   const row = new Array<number>(frame.dim).fill(0);
   const put = (ring: number, off: number): void => {
     const o = COORDS_PER_RING * ring;
-    row[o] = g[off]!;
-    row[o + 1] = g[off + 1]!;
-    row[o + 2] = g[off + 2]!;
+    row[o]! += g[off]!;
+    row[o + 1]! += g[off + 1]!;
+    row[o + 2]! += g[off + 2]!;
     const e1 = frame.e1[ring]!, e2 = frame.e2[ring]!;
-    row[o + 3] = (g[off + 3]! * e1[0] + g[off + 4]! * e1[1] + g[off + 5]! * e1[2]) / frame.length;
-    row[o + 4] = (g[off + 3]! * e2[0] + g[off + 4]! * e2[1] + g[off + 5]! * e2[2]) / frame.length;
+    row[o + 3]! += (g[off + 3]! * e1[0] + g[off + 4]! * e1[1] + g[off + 5]! * e1[2]) / frame.length;
+    row[o + 4]! += (g[off + 3]! * e2[0] + g[off + 4]! * e2[1] + g[off + 5]! * e2[2]) / frame.length;
   };
   put(s.a, 0);
   put(s.b, 7);

@@ -4,7 +4,7 @@
 // (ω along its own normal) never changes the tube, so it has no coordinate at all.
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { cross, dot, norm, planeBasis, rotate } from '../model/vec.js';
-import type { Vec3 } from '../model/types.js';
+import type { Lattice, Vec3 } from '../model/types.js';
 
 /** A ring as the mobility analysis sees it: core circle plus its own tube radius. */
 export interface RingPose {
@@ -37,7 +37,12 @@ const TRIVIAL_RANK_TOL = 1e-10;
 
 export const COORDS_PER_RING = 5;
 
-export function motionFrame(rings: readonly RingPose[]): MotionFrame {
+/**
+ * Reduced coordinates of the rings. With a lattice the whole-set motions are the translations and the
+ * turns that map every lattice vector to itself (about the chain axis for one vector, none for two):
+ * any other turn would move the copies in neighbouring cells differently from their rings.
+ */
+export function motionFrame(rings: readonly RingPose[], lattice: Lattice | null = null): MotionFrame {
   const n = rings.length;
   const dim = COORDS_PER_RING * n;
   const length = n === 0 ? 1 : rings.reduce((s, r) => s + r.radius, 0) / n;
@@ -56,10 +61,21 @@ export function motionFrame(rings: readonly RingPose[]): MotionFrame {
     const axis: Vec3 = [0, 0, 0];
     axis[k] = 1;
     raw.push(fromRigid(frame0, rings, axis, [0, 0, 0]));
-    raw.push(fromRigid(frame0, rings, [0, 0, 0], axis));
   }
+  for (const axis of wholeSetTurns(lattice)) raw.push(fromRigid(frame0, rings, [0, 0, 0], axis));
   const { range, kernel } = splitSpan(raw, dim);
   return { ...frame0, trivial: range, free: kernel };
+}
+
+function wholeSetTurns(lattice: Lattice | null): Vec3[] {
+  const vectors = lattice?.vectors ?? [];
+  if (vectors.length === 0) return [[1, 0, 0], [0, 1, 0], [0, 0, 1]];
+  if (vectors.length === 1) {
+    const v = vectors[0]!;
+    const l = norm(v);
+    return [[v[0] / l, v[1] / l, v[2] / l]];
+  }
+  return [];
 }
 
 /** Reduced coordinates of the whole-set motion: translation t plus rotation Ω about the centroid. */

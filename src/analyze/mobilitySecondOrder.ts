@@ -7,7 +7,8 @@
 // "Second-order rigidity and prestress stability for tensegrity frameworks", SIAM J. Discrete Math. 9, 1996).
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { pointCircleDistance, ringDistance } from '../kernel/index.js';
-import type { Vec3 } from '../model/types.js';
+import type { Lattice, Vec3 } from '../model/types.js';
+import { imagePairs, shifted, type ImagePair } from './mobilityPairs.js';
 import { cross, norm, rotate } from '../model/vec.js';
 import { linkingNumber } from '../topology/index.js';
 import { solveLp } from './mobilityLp.js';
@@ -26,6 +27,8 @@ export type PairVerdict = 'opens-first-order' | 'closes-first-order' | 'opens-se
 export interface PairSecondOrder {
   a: number;
   b: number;
+  /** Shift of ring b's copy (a lattice); [0,0,0] inside the cell. */
+  offset: Vec3;
   /** Clearance d - r_a - r_b at s = 0 (layout units). */
   gap: number;
   /** Fitted clearance(s) - clearance(0) = c1 s + c2 s² + c3 s³ for s > 0 along the motion. */
@@ -49,6 +52,8 @@ export interface SecondOrderOptions {
   correction?: readonly RingVelocity[];
   /** Step of the finite differences (layout units); default 1e-3 of the mean core radius. */
   step?: number;
+  /** Translational periodicity of a weave: copies move with their rings. */
+  lattice?: Lattice | null;
 }
 
 /** Slopes (dimensionless) and curvatures (per layout unit, times the length scale) below these are zero. */
@@ -66,17 +71,16 @@ export function secondOrderAlong(rings: readonly RingPose[], x: readonly RingVel
   const y = options.correction;
   const moved = [1, 2, 3].map((j) => rings.map((r, i) => displace(r, x[i]!, y ? y[i]! : null, j * h)));
   const pairs: PairSecondOrder[] = [];
-  for (let a = 0; a < rings.length; a++) {
-    for (let b = a + 1; b < rings.length; b++) {
-      const sum = rings[a]!.tube + rings[b]!.tube;
-      const gap = ringDistance(rings[a]!, rings[b]!).distance - sum;
-      if (gap > options.activeTol) continue;
-      const f = moved.map((P) => ringDistance(P[a]!, P[b]!).distance - sum - gap);
-      // Cubic through 0 and the three samples: solve the 3x3 Vandermonde system in s/h.
-      const [k1, k2] = cubicThroughZero(f[0]!, f[1]!, f[2]!);
-      const c1 = k1 / h, c2 = k2 / (h * h);
-      pairs.push({ a, b, gap, c1, c2, verdict: verdictOf(c1, c2 * L) });
-    }
+  const candidates = imagePairs(rings, options.lattice ?? null, 2 * maxTubeOf(rings) + options.activeTol);
+  for (const { a, b, offset } of candidates) {
+    const sum = rings[a]!.tube + rings[b]!.tube;
+    const gap = ringDistance(rings[a]!, shifted(rings[b]!, offset)).distance - sum;
+    if (gap > options.activeTol) continue;
+    const f = moved.map((P) => ringDistance(P[a]!, shifted(P[b]!, offset)).distance - sum - gap);
+    // Cubic through 0 and the three samples: solve the 3x3 Vandermonde system in s/h.
+    const [k1, k2] = cubicThroughZero(f[0]!, f[1]!, f[2]!);
+    const c1 = k1 / h, c2 = k2 / (h * h);
+    pairs.push({ a, b, offset, gap, c1, c2, verdict: verdictOf(c1, c2 * L) });
   }
   const opens = (v: PairVerdict): boolean => v === 'opens-first-order' || v === 'opens-second-order';
   return {
@@ -105,6 +109,8 @@ export interface SecondOrderReport {
   /** Thickest common tube after following the escape a finite step, checked with the exact kernel. */
   thickenedTube: number | null;
   thickenStep: number | null;
+  /** The ring poses at that step (tubes unchanged); null without a confirmed thickening. */
+  thickenedRings: RingPose[] | null;
   /** Pair-level check along the escape (or along the top flex when there is none). */
   along: AlongResult | null;
   detail: string;
@@ -126,7 +132,7 @@ export async function secondOrderSearch(
   const h = options.step ?? 1e-3 * L;
   const none: SecondOrderReport = {
     outcome: 'not-run', escapeOrder: null, direction: null, correction: null, stressFormEigenvalues: [],
-    margin: null, thickenedTube: null, thickenStep: null, along: null, detail: '',
+    margin: null, thickenedTube: null, thickenStep: null, thickenedRings: null, along: null, detail: '',
   };
   if (fo.status !== 'ok') return { ...none, detail: `first-order analysis failed (${fo.detail})` };
   if (fo.active.struts.length === 0) return { ...none, detail: 'no active contacts: every motion is free' };
@@ -134,10 +140,11 @@ export async function secondOrderSearch(
   // Order 1: one motion opens every contact at once.
   if (fo.openingDirection !== null) {
     const x = unit(expandFree(frame, fo.openingDirection));
-    const thick = thicken(rings, frame, x, null, tube, ratios);
+    const thick = thicken(rings, frame, x, null, tube, ratios, options.lattice ?? null);
     return {
       ...none, outcome: 'escape', escapeOrder: 1, direction: x, stressFormEigenvalues: [], margin: fo.openingMargin,
-      thickenedTube: thick.tube, thickenStep: thick.step, along: secondOrderAlong(rings, velocities(frame, x), options),
+      thickenedTube: thick.tube, thickenStep: thick.step, thickenedRings: thick.rings,
+      along: secondOrderAlong(rings, velocities(frame, x), options),
       detail: 'a first-order motion opens every active contact',
     };
   }
@@ -192,10 +199,10 @@ export async function secondOrderSearch(
       if (lp === null) continue;
       bestMargin = Math.max(bestMargin, lp.margin);
       if (lp.margin > tol) {
-        const thick = thicken(rings, frame, x, lp.y, tube, ratios);
+        const thick = thicken(rings, frame, x, lp.y, tube, ratios, options.lattice ?? null);
         return {
           ...none, outcome: 'escape', escapeOrder: 2, direction: x, correction: lp.y, stressFormEigenvalues: eigen,
-          margin: lp.margin, thickenedTube: thick.tube, thickenStep: thick.step,
+          margin: lp.margin, thickenedTube: thick.tube, thickenStep: thick.step, thickenedRings: thick.rings,
           along: secondOrderAlong(rings, velocities(frame, x), { ...options, correction: velocities(frame, lp.y) }),
           detail: 'a first-order flex with a second-order correction opens every active contact',
         };
@@ -221,15 +228,16 @@ export function velocities(frame: MotionFrame, x: ArrayLike<number>): RingVeloci
   return Array.from({ length: frame.rings }, (_, i) => ringMotion(frame, x, i));
 }
 
-/** Largest common tube (r_i = t ratio_i) the poses allow: every pair apart and every tube embedded. */
-export function maxCommonTube(rings: readonly RingPose[], ratios: readonly number[]): number {
+/**
+ * Largest common tube (r_i = t ratio_i) the poses allow: every listed pair apart and every tube embedded.
+ * `pairs` defaults to every pair of the rings (no lattice).
+ */
+export function maxCommonTube(rings: readonly RingPose[], ratios: readonly number[], pairs?: readonly ImagePair[]): number {
   let t = Infinity;
-  for (let i = 0; i < rings.length; i++) {
-    if (ratios[i]! > 0) t = Math.min(t, rings[i]!.radius / ratios[i]!);
-    for (let j = i + 1; j < rings.length; j++) {
-      const s = ratios[i]! + ratios[j]!;
-      if (s > 0) t = Math.min(t, ringDistance(rings[i]!, rings[j]!).distance / s);
-    }
+  for (let i = 0; i < rings.length; i++) if (ratios[i]! > 0) t = Math.min(t, rings[i]!.radius / ratios[i]!);
+  for (const { a, b, offset } of pairs ?? imagePairs(rings, null, 0)) {
+    const s = ratios[a]! + ratios[b]!;
+    if (s > 0) t = Math.min(t, ringDistance(rings[a]!, shifted(rings[b]!, offset)).distance / s);
   }
   return t;
 }
@@ -242,33 +250,41 @@ export function maxCommonTube(rings: readonly RingPose[], ratios: readonly numbe
  */
 function thicken(
   rings: readonly RingPose[], frame: MotionFrame, x: number[], y: number[] | null, tube: number, ratios: readonly number[],
-): { tube: number | null; step: number | null } {
-  const base = maxCommonTube(rings, ratios);
-  const linking = pairLinking(rings);
-  let best = base, bestStep: number | null = null;
+  lattice: Lattice | null,
+): { tube: number | null; step: number | null; rings: RingPose[] | null } {
+  // Steps reach a tenth of the length scale; copies farther than this cannot start to matter.
+  const pairs = imagePairs(rings, lattice, 4 * maxTubeOf(rings) + frame.length);
+  const base = maxCommonTube(rings, ratios, pairs);
+  const linking = pairLinking(rings, pairs);
+  let best = base, bestStep: number | null = null, bestRings: RingPose[] | null = null;
   for (let k = 0; k <= 10; k++) {
     const s = frame.length * 1e-4 * 2 ** k;
     const P = rings.map((r, i) => displace(r, ringMotion(frame, x, i), y === null ? null : ringMotion(frame, y, i), s));
-    if (!sameLinking(pairLinking(P), linking)) break;
-    const t = maxCommonTube(P, ratios);
+    if (!sameLinking(pairLinking(P, pairs), linking)) break;
+    const t = maxCommonTube(P, ratios, pairs);
     if (t <= best) {
       if (bestStep !== null) break;
       continue;
     }
     best = t;
     bestStep = s;
+    bestRings = P;
   }
   const gain = best - Math.max(base, tube);
-  return bestStep === null || !(gain > THICKEN_REL * frame.length) ? { tube: null, step: null } : { tube: best, step: bestStep };
+  return bestStep === null || !(gain > THICKEN_REL * frame.length)
+    ? { tube: null, step: null, rings: null }
+    : { tube: best, step: bestStep, rings: bestRings };
 }
 
 /** A thickening smaller than this (relative to the mean core radius) is not claimed. */
 const THICKEN_REL = 1e-12;
 
-function pairLinking(rings: readonly RingPose[]): number[] {
-  const out: number[] = [];
-  for (let i = 0; i < rings.length; i++) for (let j = i + 1; j < rings.length; j++) out.push(linkingNumber(rings[i]!, rings[j]!));
-  return out;
+function pairLinking(rings: readonly RingPose[], pairs: readonly ImagePair[]): number[] {
+  return pairs.map(({ a, b, offset }) => linkingNumber(rings[a]!, shifted(rings[b]!, offset)));
+}
+
+function maxTubeOf(rings: readonly RingPose[]): number {
+  return Math.max(0, ...rings.map((r) => r.tube));
 }
 
 function sameLinking(a: number[], b: number[]): boolean {
@@ -334,13 +350,13 @@ function contactCurvature(rings: readonly RingPose[], frame: MotionFrame, s: Str
  * point–circle distance to B), so it follows the local minimum as the kernel would.
  */
 function contactDistance(rings: readonly RingPose[], frame: MotionFrame, s: Strut, x: number[], step: number): number {
-  const A = rings[s.a]!, B = rings[s.b]!;
+  const A = rings[s.a]!, B = shifted(rings[s.b]!, s.offset);
   const ma = ringMotion(frame, x, s.a), mb = ringMotion(frame, x, s.b);
   const dA = scale3(ma.v, step), wA = scale3(ma.omega, step);
   const dB = scale3(mb.v, step), wB = scale3(mb.omega, step);
   const A1 = moveRing(A, dA, wA), B1 = moveRing(B, dB, wB);
   if (s.kind === 'continuum') {
-    if (s.sampleOn === s.b) return pointCircleDistance(movePoint(B, s.pB, dB, wB), A1.center, A1.normal, A1.radius);
+    if (s.sampleOn === 'b') return pointCircleDistance(movePoint(B, s.pB, dB, wB), A1.center, A1.normal, A1.radius);
     return pointCircleDistance(movePoint(A, s.pA, dA, wA), B1.center, B1.normal, B1.radius);
   }
   // Material frame of A carried by the motion: the contact's angle stays meaningful.

@@ -7,6 +7,7 @@ import { firstOrderMobility, type FirstOrder } from './mobility.js';
 import { expandFree, fromRigid, ringMotion, type MotionFrame, type RingPose } from './mobilityMotion.js';
 import { secondOrderAlong, secondOrderSearch, velocities, type PairSecondOrder, type SecondOrderReport } from './mobilitySecondOrder.js';
 import { finitePlay, type PlayTable } from './finitePlay.js';
+import { copyName } from './mobilityPairs.js';
 
 export const PLAY_FORMAT = 'thickring-play/1';
 
@@ -79,6 +80,8 @@ export interface PlayReport {
     direction: FreeMotion | null;
     /** Thicker common tube reached by following the escape (layout units), checked with the exact kernel. */
     thickenedTube: number | null;
+    /** Ring poses at that point (a start for re-inflating without symmetry); null without an escape. */
+    thickenedRings: { name: string; center: Vec3; normal: Vec3; radius: number }[] | null;
     stressFormEigenvalues: number[];
     pairs: PairSecondOrder[];
     detail: string;
@@ -96,8 +99,11 @@ export async function analyzePlay(result: SolveResult, options: PlayAnalysisOpti
   const ratios = tubeRatios(result);
   const tube = options.tube ?? result.tube;
   if (!Number.isFinite(tube) || tube <= 0) {
-    throw new InputError(`--tube ${tube} must be a number > 0 (layout units): pass a positive tube radius`);
+    throw new InputError(options.tube === undefined
+      ? `result tube ${result.tube} is not > 0 (solve status ${result.status}): pass --tube R to analyse the rings at a chosen tube radius`
+      : `--tube ${tube} must be a number > 0 (layout units): pass a positive tube radius`);
   }
+  const lattice = result.lattice ?? null;
   const rings: RingPose[] = result.rings.map((r, i) => ({
     name: r.name, center: r.center, normal: unitVec(r.normal), radius: r.radius, tube: tube * ratios[i]!,
   }));
@@ -109,18 +115,20 @@ export async function analyzePlay(result: SolveResult, options: PlayAnalysisOpti
     }
   }
 
-  const fo = await firstOrderMobility(rings, { activeTol });
+  const fo = await firstOrderMobility(rings, { activeTol, lattice });
   if (fo.active.minGap < -activeTol) {
     throw new InputError(
       `--tube ${tube} ${units} makes tubes overlap by ${fmt(-fo.active.minGap)} ${units}: choose a tube <= ${fmt(tube + fo.active.minGap / 2)} (the result's is ${fmt(result.tube)})`,
     );
   }
-  const so = await secondOrderSearch(rings, fo, tube, ratios, { activeTol });
-  const play = finitePlay(rings, tube, { touchTol: activeTol, ...(options.translationCap !== undefined ? { translationCap: options.translationCap } : {}) });
+  const so = await secondOrderSearch(rings, fo, tube, ratios, { activeTol, lattice });
+  const play = finitePlay(rings, tube, {
+    touchTol: activeTol, lattice, ...(options.translationCap !== undefined ? { translationCap: options.translationCap } : {}),
+  });
 
   const anchor = anchorRing(fo);
   const along = (x: number[]): FreeMotion['secondOrder'] => {
-    const a = secondOrderAlong(rings, velocities(fo.frame, x), { activeTol });
+    const a = secondOrderAlong(rings, velocities(fo.frame, x), { activeTol, lattice });
     return a.blocked ? 'closes' : a.escape ? 'opens' : 'keeps';
   };
   const freeMotions: FreeMotion[] = [
@@ -134,12 +142,15 @@ export async function analyzePlay(result: SolveResult, options: PlayAnalysisOpti
     }),
   ];
   const escape = so.outcome === 'escape';
-  const lockedBy = rings.length < 2 ? null
+  const lockedBy = rings.length < 2 && lattice === null ? null
     : so.outcome === 'first-order-locked' ? 'first-order'
       : so.outcome === 'prestress-stable' ? 'second-order' : null;
 
   const notes: string[] = [];
-  if (rings.length < 2) notes.push('a single ring has nothing to lock against');
+  if (rings.length < 2 && lattice === null) notes.push('a single ring has nothing to lock against');
+  if (lattice !== null) {
+    notes.push('periodic weave: in the mobility and second-order tests every copy moves with its ring; in the play table one ring moves and every copy stays put');
+  }
   if (fo.active.struts.length === 0) notes.push(`no contacts at tube ${fmt(tube)} ${units}: every ring can move until its play runs out`);
   if (escape && result.status === 'optimal') notes.push('the result is marked optimal, yet a motion thickens it: it is a saddle, not a maximum');
   if (fo.status !== 'ok') notes.push(`mobility LP failed: ${fo.detail}`);
@@ -163,7 +174,7 @@ export async function analyzePlay(result: SolveResult, options: PlayAnalysisOpti
       status: fo.status,
       activeContacts: fo.active.struts.length,
       continua: fo.active.continua.map((c) => ({
-        a: rings[c.a]!.name, b: rings[c.b]!.name, kind: c.kind, sampledRing: rings[c.sampled]!.name, samples: c.samples,
+        a: rings[c.a]!.name, b: copyName(rings[c.b]!.name, c.offset), kind: c.kind, sampledRing: rings[c.sampled]!.name, samples: c.samples,
       })),
       openingMargin: fo.openingMargin,
       selfStress: fo.stress !== null,
@@ -178,6 +189,8 @@ export async function analyzePlay(result: SolveResult, options: PlayAnalysisOpti
         : describeMotion(rings, fo.frame, so.direction, escape ? 'escape' : 'reversible', anchor, units,
           so.along === null ? along(so.direction) : so.along.blocked ? 'closes' : so.along.escape ? 'opens' : 'keeps'),
       thickenedTube: so.thickenedTube,
+      thickenedRings: so.thickenedRings === null ? null
+        : so.thickenedRings.map((r) => ({ name: r.name, center: r.center, normal: r.normal, radius: r.radius })),
       stressFormEigenvalues: so.stressFormEigenvalues,
       pairs: so.along?.pairs ?? [],
       detail: so.detail,

@@ -1,10 +1,15 @@
 // The symmetry-breaking curve: the thickest tube when the layout may depart from a symmetry by at most
 // ε (symmetryDeparture, layout units), from ε = 0 (the symmetric optimum) until the gain saturates at
-// the unconstrained optimum. Each ε is warm-started from the solution at the previous ε, which stays
-// feasible as ε grows, so the best feasible tube found can only rise: when a solve comes back lower
-// (or fails), the previous configuration is kept as the value at this ε — an honest lower bound on the
-// curve, flagged 'stalled'. Both ends are re-checked by the independent checker (verify.ts), and every
-// point's departure is re-measured here rather than trusted to the solver.
+// the unconstrained optimum.
+//
+// Each ε is warm-started from the solution at the previous ε (as given, and slightly perturbed: the
+// symmetric optimum is a critical point of the unconstrained problem too — symmetric criticality — so
+// an unperturbed start can sit there) and from the straight path between the symmetric optimum and the
+// aligned unconstrained one, whose departure grows linearly along the path. The previous solution stays
+// feasible as ε grows, so the best feasible tube found can only rise: when no start improves on it, it
+// is kept as the value at this ε (an honest lower bound on the curve, flagged 'stalled'). At the last ε
+// the aligned unconstrained optimum is itself feasible, so the curve ends at the unconstrained value.
+// Every point's departure is re-measured here and both ends are re-checked by verify.ts.
 import { verifyConfiguration } from './verify.js';
 import { alignRings, applyAlignment } from './align.js';
 import type { ResultRing, SolveResult, SweepPoint, Verification } from '../model/result.js';
@@ -16,6 +21,7 @@ import type { InflateProblem } from '../optimize/problem.js';
 export interface SweepOptions {
   tol: number;
   seed: number;
+  workers: number;
   /** Steps between ε = 0 and the departure of the unconstrained optimum (default 6). */
   points?: number;
   maxIterations?: number;
@@ -32,8 +38,16 @@ export interface SweepProgress {
   status: SolveStatus;
 }
 
+/** The configuration behind one point of the curve. */
+export interface SweepConfiguration {
+  epsilon: number;
+  tube: number;
+  rings: Ring[];
+}
+
 export interface SweepOutcome {
   points: SweepPoint[];
+  configurations: SweepConfiguration[];
   /** Independent re-check of the configurations at the first and last point. */
   startCheck: Verification;
   endCheck: Verification;
@@ -41,8 +55,6 @@ export interface SweepOutcome {
   brokenDeparture: number;
   /** True when the last point reached the unconstrained value within the saturation tolerance. */
   saturated: boolean;
-  /** Poses and tube of the last point, for a caller that wants to polish them further. */
-  end: { rings: Ring[]; tube: number };
   messages: string[];
 }
 
@@ -50,8 +62,12 @@ export const DEFAULT_SWEEP_POINTS = 6;
 /** Saturation tolerance relative to the tube: the larger of this and SATURATION_TOL_FACTOR × tol. */
 export const SATURATION_REL_MIN = 1e-6;
 export const SATURATION_TOL_FACTOR = 100;
-/** A solve may exceed ε by this much (relative) and still count: the constraint is met to solver tolerance. */
+/** Perturbation of the warm start, relative to each ring's radius (dimensionless). */
+const WARM_PERTURBATION = 0.01;
+/** A solve may exceed ε by this much (relative to ε) and still count: the constraint is met to solver tolerance. */
 const DEPARTURE_SLACK_REL = 1e-6;
+/** ... plus this much relative to the smallest core radius, for ε near 0. */
+const DEPARTURE_SLACK_ABS_REL = 1e-9;
 /** When the two optima coincide, the curve is still shown flat out to this departure (× smallest core radius). */
 const FLAT_SHOW_REL = 0.05;
 
@@ -71,31 +87,36 @@ export async function symmetryBreakingSweep(
   const orbits = ringOrbits(symmetricRings, symmetry);
   const alignment = alignRings(broken.rings, symmetric.rings);
   const alignedBroken = broken.rings.map((r) => toRing(applyAlignment(alignment, r)));
-  const brokenDeparture = departure(alignedBroken, symmetry, orbits);
+  const brokenDeparture = symmetryDeparture(alignedBroken, symmetry, orbits);
   const minRadius = Math.min(...symmetricRings.map((r) => r.radius));
   const satTol = Math.max(SATURATION_REL_MIN, SATURATION_TOL_FACTOR * options.tol) * Math.max(broken.tube, symmetric.tube);
+  const saturatedAt = (tube: number): boolean => tube >= broken.tube - satTol;
   const messages: string[] = [];
+  let seed = options.seed;
 
   const points: SweepPoint[] = [{ epsilon: 0, tube: symmetric.tube, status: symmetric.status }];
+  const configurations: SweepConfiguration[] = [{ epsilon: 0, tube: symmetric.tube, rings: symmetricRings }];
   let current = { rings: symmetricRings, tube: symmetric.tube };
-  const saturatedAt = (tube: number): boolean => tube >= broken.tube - satTol;
 
-  // Grid: evenly spaced up to the broken optimum's departure; a flat stretch when the optima coincide.
+  // Grid: evenly spaced up to the broken optimum's departure; one flat step when the optima coincide.
   const steps = Math.max(1, options.points ?? DEFAULT_SWEEP_POINTS);
   const flat = saturatedAt(symmetric.tube);
   const epsMax = flat ? Math.max(brokenDeparture, FLAT_SHOW_REL * minRadius) : brokenDeparture;
-  const grid = flat ? [epsMax] : Array.from({ length: steps }, (_, k) => (epsMax * (k + 1)) / steps);
-  let done = 0;
+  const grid = flat || !(epsMax > 0) ? [Math.max(epsMax, FLAT_SHOW_REL * minRadius)] : Array.from({ length: steps }, (_, k) => (epsMax * (k + 1)) / steps);
   for (const [k, epsilon] of grid.entries()) {
     const last = k === grid.length - 1;
-    const starts: Ring[][] = [current.rings];
-    // At the last ε the aligned broken optimum itself is feasible: start there too, so the curve reaches it.
-    if (last && !flat) starts.push(alignedBroken);
-    let best: { rings: Ring[]; tube: number; status: SolveStatus } | null = null;
-    for (const [s, rings] of starts.entries()) {
-      const r = await solveAt(rings, epsilon, s);
-      if (r && (!best || r.tube > best.tube)) best = r;
+    const candidates: Candidate[] = [];
+    // Warm start as given (start 0) and perturbed (start 1).
+    candidates.push(...await solveAt(current.rings, epsilon, 2));
+    if (!flat && epsMax > 0) {
+      const s = Math.min(1, epsilon / epsMax);
+      candidates.push(...await solveAt(interpolate(symmetricRings, alignedBroken, s), epsilon, 1));
     }
+    if (last && !flat && epsilon >= brokenDeparture) {
+      // The aligned unconstrained optimum is feasible here as it stands (a rigid motion keeps every distance).
+      candidates.push({ rings: alignedBroken, tube: broken.tube, status: broken.status });
+    }
+    const best = candidates.reduce<Candidate | null>((b, c) => (b === null || c.tube > b.tube ? c : b), null);
     let status: SolveStatus;
     if (best && best.tube >= current.tube) {
       current = { rings: best.rings, tube: best.tube };
@@ -106,8 +127,9 @@ export async function symmetryBreakingSweep(
       messages.push(`sweep: at ε = ${fmt(epsilon)} no start improved on the previous point; its configuration is kept (a lower bound)`);
     }
     points.push({ epsilon, tube: current.tube, status });
-    options.onProgress?.({ done: ++done, total: grid.length, epsilon, tube: current.tube, status });
-    if (saturatedAt(current.tube) && !flat) break;
+    configurations.push({ epsilon, tube: current.tube, rings: current.rings });
+    options.onProgress?.({ done: k + 1, total: grid.length, epsilon, tube: current.tube, status });
+    if (!flat && saturatedAt(current.tube)) break;
   }
 
   const startCheck = verifyConfiguration({ rings: symmetricRings, tube: symmetric.tube, tubeRatios: ratios, linking: base.linking });
@@ -127,31 +149,61 @@ export async function symmetryBreakingSweep(
         `${fmt(broken.tube)} by more than the tolerance ${fmt(satTol)} (layout units)`,
     );
   }
-  return { points, startCheck, endCheck, brokenDeparture, saturated, end: current, messages };
+  return { points, configurations, startCheck, endCheck, brokenDeparture, saturated, messages };
 
-  // One warm-started solve with the departure bound; null unless the outcome is verified and within ε.
-  async function solveAt(rings: Ring[], epsilon: number, attempt: number): Promise<{ rings: Ring[]; tube: number; status: SolveStatus } | null> {
+  // Warm-started solves with the departure bound; only verified outcomes within ε come back.
+  async function solveAt(rings: Ring[], epsilon: number, starts: number): Promise<Candidate[]> {
     const problem: InflateProblem = {
       rings, tubeRatios: ratios, linking: base.linking, symmetry: null, departure: { symmetry, epsilon },
     };
     const r = await runMultistart(problem, {
-      starts: 1, workers: 1, seed: options.seed + attempt, tol: options.tol, spec: options.spec,
-      command: 'compare', units: options.units,
+      starts, workers: Math.min(starts, options.workers), seed: seed++, tol: options.tol, perturbation: WARM_PERTURBATION,
+      spec: options.spec, command: 'compare', units: options.units,
       ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}),
     });
-    if (!(r.status === 'optimal' || r.status === 'stalled') || !r.verification.ok) return null;
+    if (!(r.status === 'optimal' || r.status === 'stalled') || !r.verification.ok) return [];
     const out = r.rings.map(toRing);
-    const d = departure(out, symmetry, orbits);
-    if (d > epsilon * (1 + DEPARTURE_SLACK_REL) + DEPARTURE_SLACK_REL * minRadius * options.tol) {
+    // Measured with the ring matching the solver used (nearest images of its start).
+    const d = departureOrNull(out, symmetry, rings) ?? symmetryDeparture(out, symmetry, orbits);
+    if (d > epsilon * (1 + DEPARTURE_SLACK_REL) + DEPARTURE_SLACK_ABS_REL * minRadius) {
       messages.push(`sweep: at ε = ${fmt(epsilon)} the solver returned departure ${fmt(d)} (layout units); that point was not used`);
-      return null;
+      return [];
     }
-    return { rings: out, tube: r.tube, status: r.status };
+    return [{ rings: out, tube: r.tube, status: r.status }];
   }
 }
 
-function departure(rings: Ring[], symmetry: Symmetry, orbits: RingOrbits): number {
+interface Candidate {
+  rings: Ring[];
+  tube: number;
+  status: SolveStatus;
+}
+
+/** Departure of `rings` with the ring matching found on `reference`; null when that has no consistent matching. */
+function departureOrNull(rings: Ring[], symmetry: Symmetry, reference: Ring[]): number | null {
+  let orbits: RingOrbits;
+  try {
+    orbits = ringOrbits(reference, symmetry);
+  } catch {
+    return null;
+  }
   return symmetryDeparture(rings, symmetry, orbits);
+}
+
+/** Poses a fraction s of the way from a to b (centres linearly, normals linearly then normalised). */
+function interpolate(a: Ring[], b: Ring[], s: number): Ring[] {
+  return a.map((r, i) => {
+    const q = b[i]!;
+    const sign = r.normal[0] * q.normal[0] + r.normal[1] * q.normal[1] + r.normal[2] * q.normal[2] >= 0 ? 1 : -1;
+    const n = [0, 1, 2].map((k) => (1 - s) * r.normal[k]! + s * sign * q.normal[k]!);
+    const l = Math.hypot(n[0]!, n[1]!, n[2]!) || 1;
+    return {
+      name: r.name,
+      center: [0, 1, 2].map((k) => (1 - s) * r.center[k]! + s * q.center[k]!) as [number, number, number],
+      normal: [n[0]! / l, n[1]! / l, n[2]! / l],
+      radius: r.radius,
+    };
+  });
 }
 
 function toRing(r: Pick<ResultRing, 'name' | 'center' | 'normal' | 'radius'>): Ring {

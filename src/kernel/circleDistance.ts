@@ -151,8 +151,9 @@ for (let i = 0; i <= 2 * INITIAL_INTERVALS; i++) {
 }
 
 // Geometry of the current query (module scope so helpers need no arguments).
-let Dx = 0, Dy = 0, Dz = 0, e1x = 0, e1y = 0, e1z = 0, e2x = 0, e2y = 0, e2z = 0;
-let Bx = 0, By = 0, Bz = 0, Nx = 0, Ny = 0, Nz = 0, Ax = 0, Ay = 0, Az = 0, rA = 0, rB = 0;
+// Held in a typed array, not module-level `let`s: doubles stored in closure slots are boxed on every write.
+const GEO = new Float64Array(20);
+const enum Geo { Dx, Dy, Dz, e1x, e1y, e1z, e2x, e2y, e2z, Bx, By, Bz, Nx, Ny, Nz, Ax, Ay, Az, rA, rB }
 
 /**
  * Hot path. Unit normals required. Writes CONTACT_STRIDE floats per local minimum into out
@@ -163,13 +164,19 @@ export function circleContacts(
   cB: ArrayLike<number>, nB: ArrayLike<number>, RB: number,
   out: Float64Array,
 ): number {
-  Ax = cA[0]!; Ay = cA[1]!; Az = cA[2]!;
-  Bx = cB[0]!; By = cB[1]!; Bz = cB[2]!;
-  Nx = nB[0]!; Ny = nB[1]!; Nz = nB[2]!;
-  rA = RA; rB = RB;
-  Dx = Ax - Bx; Dy = Ay - By; Dz = Az - Bz;
+  const Ax = cA[0]!, Ay = cA[1]!, Az = cA[2]!;
+  const Bx = cB[0]!, By = cB[1]!, Bz = cB[2]!;
+  const Nx = nB[0]!, Ny = nB[1]!, Nz = nB[2]!;
+  const Dx = Ax - Bx, Dy = Ay - By, Dz = Az - Bz;
   basisInto(nA[0]!, nA[1]!, nA[2]!, FR);
-  e1x = FR[0]!; e1y = FR[1]!; e1z = FR[2]!; e2x = FR[3]!; e2y = FR[4]!; e2z = FR[5]!;
+  const e1x = FR[0]!, e1y = FR[1]!, e1z = FR[2]!, e2x = FR[3]!, e2y = FR[4]!, e2z = FR[5]!;
+  GEO[Geo.Dx] = Dx; GEO[Geo.Dy] = Dy; GEO[Geo.Dz] = Dz;
+  GEO[Geo.e1x] = e1x; GEO[Geo.e1y] = e1y; GEO[Geo.e1z] = e1z;
+  GEO[Geo.e2x] = e2x; GEO[Geo.e2y] = e2y; GEO[Geo.e2z] = e2z;
+  GEO[Geo.Bx] = Bx; GEO[Geo.By] = By; GEO[Geo.Bz] = Bz;
+  GEO[Geo.Nx] = Nx; GEO[Geo.Ny] = Ny; GEO[Geo.Nz] = Nz;
+  GEO[Geo.Ax] = Ax; GEO[Geo.Ay] = Ay; GEO[Geo.Az] = Az;
+  GEO[Geo.rA] = RA; GEO[Geo.rB] = RB;
   const dd = Dx * Dx + Dy * Dy + Dz * Dz;
   const L = RA + RB + Math.sqrt(dd);
 
@@ -246,6 +253,7 @@ export function circleContacts(
  * within one grid step of a maximum away from the axis, where f is nearly constant.
  */
 function sampleMinima(out: Float64Array): number {
+  const rA = GEO[Geo.rA]!;
   const n = NEAR_CONTINUUM_SAMPLES;
   const step = TWO_PI / n;
   let nS = 0;
@@ -287,6 +295,7 @@ function sampleMinima(out: Float64Array): number {
 
 /** rho(s)^2: squared distance of A(s) from B's axis. */
 function rho2At(sv: number): number {
+  const Dx = GEO[Geo.Dx]!, Dy = GEO[Geo.Dy]!, Dz = GEO[Geo.Dz]!, e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, rA = GEO[Geo.rA]!;
   const c = Math.cos(sv), sn = Math.sin(sv);
   const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
   const z = dx * Nx + dy * Ny + dz * Nz;
@@ -433,10 +442,12 @@ function hAt(s: number): number {
 }
 
 function hAtCS(c: number, sn: number): number {
+  const Dx = GEO[Geo.Dx]!, Dy = GEO[Geo.Dy]!, Dz = GEO[Geo.Dz]!, e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
   const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
   const tx = rA * (-e1x * sn + e2x * c), ty = rA * (-e1y * sn + e2y * c), tz = rA * (-e1z * sn + e2z * c);
   const z = dx * Nx + dy * Ny + dz * Nz, zp = tx * Nx + ty * Ny + tz * Nz;
-  const rho = Math.hypot(dx - z * Nx, dy - z * Ny, dz - z * Nz);
+  const ux = dx - z * Nx, uy = dy - z * Ny, uz = dz - z * Nz;
+  const rho = Math.sqrt(ux * ux + uy * uy + uz * uz);
   const pp = 2 * (dx * tx + dy * ty + dz * tz);
   return pp * rho - rB * (pp - 2 * z * zp);
 }
@@ -467,12 +478,13 @@ function refine(lo: number, hi: number, glo: number, ghi: number): number {
 }
 
 function writeContact(out: Float64Array, k: number, s: number): void {
+  const e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Bx = GEO[Geo.Bx]!, By = GEO[Geo.By]!, Bz = GEO[Geo.Bz]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, Ax = GEO[Geo.Ax]!, Ay = GEO[Geo.Ay]!, Az = GEO[Geo.Az]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
   const c = Math.cos(s), sn = Math.sin(s);
   const px = Ax + rA * (e1x * c + e2x * sn), py = Ay + rA * (e1y * c + e2y * sn), pz = Az + rA * (e1z * c + e2z * sn);
   const dx = px - Bx, dy = py - By, dz = pz - Bz;
   const z = dx * Nx + dy * Ny + dz * Nz;
   let qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
-  const rho = Math.hypot(qx, qy, qz);
+  const rho = Math.sqrt(qx * qx + qy * qy + qz * qz);
   if (rho > 0) {
     qx /= rho; qy /= rho; qz /= rho;
   } else {
@@ -481,7 +493,7 @@ function writeContact(out: Float64Array, k: number, s: number): void {
   }
   const o = k * CONTACT_STRIDE;
   out[o] = s;
-  out[o + 1] = Math.hypot(z, rho - rB);
+  out[o + 1] = Math.sqrt(z * z + (rho - rB) * (rho - rB));
   out[o + 2] = px; out[o + 3] = py; out[o + 4] = pz;
   out[o + 5] = Bx + rB * qx; out[o + 6] = By + rB * qy; out[o + 7] = Bz + rB * qz;
 }
@@ -498,10 +510,12 @@ function writeContinuum(out: Float64Array): number {
 
 /** f(s) = squared distance from A(s) to circle B, from the geometry (not the coefficients). */
 function fAt(s: number): number {
+  const Dx = GEO[Geo.Dx]!, Dy = GEO[Geo.Dy]!, Dz = GEO[Geo.Dz]!, e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
   const c = Math.cos(s), sn = Math.sin(s);
   const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
   const z = dx * Nx + dy * Ny + dz * Nz;
-  const rho = Math.hypot(dx - z * Nx, dy - z * Ny, dz - z * Nz);
+  const ux = dx - z * Nx, uy = dy - z * Ny, uz = dz - z * Nz;
+  const rho = Math.sqrt(ux * ux + uy * uy + uz * uz);
   return z * z + (rho - rB) * (rho - rB);
 }
 

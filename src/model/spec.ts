@@ -16,6 +16,10 @@ export interface ResolvedSpec {
   layout: Layout;
   /** Signed linking numbers of the start (topology convention), to be kept by the solve. */
   linking: number[][];
+  /** Ring i's tube is tube · tubeRatios[i]; all 1 unless a layout gives rings different tube values. */
+  tubeRatios: number[];
+  /** Things the user should know about how the input was read (one sentence each). */
+  notes: string[];
   catalog: CatalogSpec | null;
 }
 
@@ -36,7 +40,8 @@ export function resolveSpec(arg: string, options: ResolveOptions = {}): Resolved
   if (looksLikeCatalogSpec(text) && !isFile(text)) {
     const catalog = parseCatalogSpec(text);
     const layout = catalogLayout(catalog.text, options.radii);
-    return { spec: catalog.text, source: 'catalog', layout, linking: linkingMatrix(layout.rings), catalog };
+    const tubeRatios = layout.rings.map(() => 1);
+    return { spec: catalog.text, source: 'catalog', layout, linking: linkingMatrix(layout.rings), tubeRatios, notes: [], catalog };
   }
   if (!isFile(text)) {
     // Not a file: most likely a mistyped spec; say both.
@@ -47,6 +52,8 @@ export function resolveSpec(arg: string, options: ResolveOptions = {}): Resolved
   const source = basename(text);
   const linking = linkingMatrix(layout.rings);
   checkHeld(linking, layout, source);
+  const notes: string[] = [];
+  const tubeRatios = ratiosOf(layout.rings.map((r) => r.tube), notes);
   if (options.radii !== undefined && options.radii.length > 0) {
     layout = withRadii(layout, options.radii, source);
     const after = linkingMatrix(layout.rings);
@@ -61,7 +68,18 @@ export function resolveSpec(arg: string, options: ResolveOptions = {}): Resolved
       }
     }
   }
-  return { spec: text, source: 'file', layout, linking, catalog: null };
+  return { spec: text, source: 'file', layout, linking, tubeRatios, notes, catalog: null };
+}
+
+/** Layout tubes, when they differ, are ratios r_i = tube · tube_i / largest tube_i (as in measure). */
+function ratiosOf(tubes: (number | undefined)[], notes: string[]): number[] {
+  const given = tubes.filter((t): t is number => t !== undefined);
+  const maxT = given.length > 0 ? Math.max(...given) : 0;
+  if (!given.some((t) => t !== maxT)) return tubes.map(() => 1);
+  notes.push('Rings carry different tube values: they are used as ratios (r_i = tube * tube_i / largest tube_i), not as sizes.');
+  const missing = tubes.some((t) => t === undefined);
+  if (missing) notes.push('Rings without a tube value take ratio 1 (the thickest wire).');
+  return tubes.map((t) => (t === undefined ? 1 : t / maxT));
 }
 
 /**

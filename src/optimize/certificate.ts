@@ -25,7 +25,15 @@ export interface CertifyInput {
   /** Largest activeTol a certificate may rest on. */
   activeTolLimit: number;
   polished: boolean;
+  /**
+   * Largest curvature of the Lagrangian on the critical subspace (dimensionless, from secondOrder.ts), or
+   * null when it was not computed. Above CURVATURE_TOL the point is a saddle, not a maximum.
+   */
+  curvature?: number | null;
 }
+
+/** Positive curvature (dimensionless) beyond finite-difference noise: the Kuhn–Tucker point is a saddle. */
+export const CURVATURE_TOL = 1e-6;
 
 export interface CertifyOutput {
   certificate: Certificate;
@@ -53,7 +61,10 @@ export function certify(input: CertifyInput): CertifyOutput {
   });
   const balanceResidual = sol.residual / largest;
   const usable = input.activeTol <= input.activeTolLimit;
-  const certified = m > 0 && usable && balanceResidual <= CERT_BALANCE_TOL && input.maxViolation <= CERT_VIOLATION_TOL;
+  const firstOrder = m > 0 && usable && balanceResidual <= CERT_BALANCE_TOL && input.maxViolation <= CERT_VIOLATION_TOL;
+  const curvature = input.curvature ?? null;
+  const saddle = curvature !== null && curvature > CURVATURE_TOL;
+  const certified = firstOrder && !saddle;
   const contacts: ResultContact[] = [];
   let contactSum = 0;
   active.forEach((k, j) => {
@@ -76,11 +87,20 @@ export function certify(input: CertifyInput): CertifyOutput {
   if (others.length > 0) parts.push(`the ${others.join(' and ')} limit`);
   const what = parts.join(', ');
   let note: string;
+  const second =
+    curvature === null
+      ? ' The second-order condition was not checked.'
+      : ` The Lagrangian curves down (or is flat) along every motion that keeps the binding contacts (largest curvature ${curvature.toExponential(1)}, dimensionless).`;
   if (certified) {
     note =
       `Non-negative forces on ${what} balance the objective to ${balanceResidual.toExponential(1)} (relative): ` +
-      `a Kuhn-Tucker point, so no small motion of the rings makes the tube thicker to first order. ` +
-      `This proves local, not global, optimality${input.polished ? '' : ' (not polished by Newton)'}.`;
+      `a Kuhn-Tucker point, so no small motion of the rings makes the tube thicker to first order.${second} ` +
+      `This is evidence of a local maximum, not a proof of the global one${input.polished ? '' : ' (not polished by Newton)'}.`;
+  } else if (firstOrder && saddle) {
+    note =
+      `A Kuhn-Tucker point (forces on ${what} balance to ${balanceResidual.toExponential(1)}) but a saddle: the ` +
+      `Lagrangian curves up (${curvature!.toExponential(1)}, dimensionless) along a motion that keeps the binding ` +
+      `contacts, so a nearby arrangement allows a thicker tube.`;
   } else if (!usable) {
     note = `Not certified: the contacts are only identified to ${input.activeTol.toExponential(1)} of the tube; the solver stopped before convergence.`;
   } else if (m === 0) {

@@ -1,7 +1,9 @@
 // One trust-region step of the outer loop: a strictly convex QP on the linearised struts.
 //
 //   maximise τ - (|z|² + τ²)/(2Δ)   subject to   c_k τ - G_k·z <= h_k  (h_k = g_k - c_k t >= 0),
-//                                                |z_i| <= Δ,  τ <= t_max - t.
+//                                                |z_i| <= B,  τ <= t_max - t.
+// Δ (the proximal radius) grows while the model predicts well; the box B stays below a fraction of the
+// ring size so that a step never outruns the constraints gathered for it.
 //
 // Why a proximal QP and not the bare LP of sequential linear programming: the LP optimum sits at a vertex of
 // the trust box, which near a degenerate optimum (a continuum of contacts, or fewer active struts than free
@@ -13,7 +15,7 @@
 // solver as the design asks; LD_MMA and LD_CCSAQ are the alternatives the pool retries with. HiGHS
 // (active-set QP) is the companion: used when an nlopt run returns a non-finite or infeasible point.
 import nlopt from 'nlopt-js';
-import highsLoader from 'highs';
+import type { Highs } from 'highs';
 import type { Constraint } from './constraints.js';
 
 export type InnerAlgorithm = 'slsqp' | 'mma' | 'ccsaq';
@@ -29,12 +31,20 @@ export interface StepResult {
 /** Relative feasibility slack accepted in the QP solution before the HiGHS fallback is tried. */
 const QP_FEAS_REL = 1e-9;
 const NLOPT_ALGORITHM: Record<InnerAlgorithm, string> = { slsqp: 'LD_SLSQP', mma: 'LD_MMA', ccsaq: 'LD_CCSAQ' };
-const NLOPT_XTOL = 1e-12;
-const NLOPT_CTOL = 1e-14;
+// Observed with nlopt-js 0.1.1: a constraint tolerance > 0 made SLSQP return the start point on tiny steps,
+// and xtol_rel = 0 aborted the process; these values avoid both.
+const NLOPT_XTOL = 1e-9;
+const NLOPT_CTOL = 0;
 const NLOPT_MAXEVAL: Record<InnerAlgorithm, number> = { slsqp: 200, mma: 400, ccsaq: 200 };
 const NLOPT_MAXTIME = 2;
 
-let highsPromise: ReturnType<typeof highsLoader> | null = null;
+let highsPromise: Promise<Highs> | null = null;
+
+/** The default export is the loader at run time (ESM build); the CommonJS typings hide that. */
+function loadHighs(): Promise<Highs> {
+  highsPromise ??= import('highs').then((m) => (m as unknown as { default: () => Promise<Highs> }).default());
+  return highsPromise;
+}
 
 /** Load the WebAssembly solvers once per thread. */
 export async function readySolvers(): Promise<void> {
@@ -42,17 +52,22 @@ export async function readySolvers(): Promise<void> {
 }
 
 export async function localStep(
-  cons: readonly Constraint[], nFree: number, t: number, delta: number, tMax: number, algorithm: InnerAlgorithm,
+  cons: readonly Constraint[], nFree: number, t: number, delta: number, box: number, tMax: number, algorithm: InnerAlgorithm,
 ): Promise<StepResult> {
-  const first = nloptStep(cons, nFree, t, delta, tMax, algorithm);
-  if (first.ok && feasible(first, cons, t, delta)) return first;
-  const second = await highsStep(cons, nFree, t, delta, tMax);
-  if (second.ok && feasible(second, cons, t, delta)) return second;
+  const first = nloptStep(cons, nFree, t, delta, box, tMax, algorithm);
+  if (process.env.THICKRING_DEBUG) {
+    const h = await highsStep(cons, nFree, t, delta, box, tMax);
+    console.error('  qp nlopt', first.ok, first.tau, 'highs', h.ok, h.tau, 'feas', feasible(first, cons, t, box));
+    if (first.tau === 0 && h.tau > 0) (await import('node:fs')).writeFileSync('.thickring-tmp-opt/qp.json', JSON.stringify({ cons: cons.map((k) => ({ g: k.g, c: k.c, grad: Array.from(k.grad) })), nFree, t, delta, box, tMax }));
+  }
+  if (first.ok && feasible(first, cons, t, box)) return first;
+  const second = await highsStep(cons, nFree, t, delta, box, tMax);
+  if (second.ok && feasible(second, cons, t, box)) return second;
   return { ok: false, z: new Float64Array(nFree), tau: 0, solver: 'nlopt' };
 }
 
 function nloptStep(
-  cons: readonly Constraint[], nFree: number, t: number, delta: number, tMax: number, algorithm: InnerAlgorithm,
+  cons: readonly Constraint[], nFree: number, t: number, delta: number, box: number, tMax: number, algorithm: InnerAlgorithm,
 ): StepResult {
   const s = Math.sqrt(delta);
   const n = nFree + 1;
@@ -68,7 +83,8 @@ function nloptStep(
     return f;
   }, NLOPT_XTOL);
   for (const con of cons) {
-    const h = (con.g - con.c * t) / s;
+    // Rounding can leave a slack of -1e-16; the start point must stay feasible.
+    const h = Math.max(0, con.g - con.c * t) / s;
     const G = con.grad, c = con.c;
     opt.addInequalityConstraint((x, grad) => {
       let v = c * x[nFree]! - h;
@@ -80,7 +96,7 @@ function nloptStep(
       return v;
     }, NLOPT_CTOL);
   }
-  const lower = new Array<number>(n).fill(-s), upper = new Array<number>(n).fill(s);
+  const lower = new Array<number>(n).fill(-box / s), upper = new Array<number>(n).fill(box / s);
   // τ: no useful lower limit (a step may have to give up some t), capped by t·w_i <= R_i.
   lower[nFree] = -(t + tMax) / s - 1;
   upper[nFree] = Math.max(0, (tMax - t) / s);
@@ -103,11 +119,12 @@ function nloptStep(
 }
 
 /** The same QP by the HiGHS active-set solver (in the unscaled variables). */
-async function highsStep(cons: readonly Constraint[], nFree: number, t: number, delta: number, tMax: number): Promise<StepResult> {
+async function highsStep(
+  cons: readonly Constraint[], nFree: number, t: number, delta: number, box: number, tMax: number,
+): Promise<StepResult> {
   const fail: StepResult = { ok: false, z: new Float64Array(nFree), tau: 0, solver: 'highs' };
   try {
-    highsPromise ??= highsLoader();
-    const highs = await highsPromise;
+    const highs = await loadHighs();
     const n = nFree + 1, m = cons.length;
     const starts = new Int32Array(m + 1), indices: number[] = [], values: number[] = [];
     const rowLower = new Float64Array(m).fill(-highs.infinity), rowUpper = new Float64Array(m);
@@ -123,11 +140,11 @@ async function highsStep(cons: readonly Constraint[], nFree: number, t: number, 
         values.push(con.c);
       }
       starts[k + 1] = indices.length;
-      rowUpper[k] = con.g - con.c * t;
+      rowUpper[k] = Math.max(0, con.g - con.c * t);
     });
     const colCost = new Float64Array(n);
     colCost[nFree] = -1;
-    const colLower = new Float64Array(n).fill(-delta), colUpper = new Float64Array(n).fill(delta);
+    const colLower = new Float64Array(n).fill(-box), colUpper = new Float64Array(n).fill(box);
     colLower[nFree] = -(t + tMax) - 1;
     colUpper[nFree] = Math.max(0, tMax - t);
     const hStarts = new Int32Array(n + 1), hIdx = new Int32Array(n), hVal = new Float64Array(n).fill(1 / delta);
@@ -155,9 +172,9 @@ async function highsStep(cons: readonly Constraint[], nFree: number, t: number, 
 }
 
 /** The linearised constraints and the box hold at the returned step (up to QP_FEAS_REL of the scale). */
-function feasible(step: StepResult, cons: readonly Constraint[], t: number, delta: number): boolean {
-  const tol = QP_FEAS_REL * Math.max(t, delta, 1e-300) + 1e-12 * delta;
-  for (const z of step.z) if (!(Math.abs(z) <= delta * (1 + 1e-9))) return false;
+function feasible(step: StepResult, cons: readonly Constraint[], t: number, box: number): boolean {
+  const tol = QP_FEAS_REL * Math.max(t, box, 1e-300) + 1e-12 * box;
+  for (const z of step.z) if (!(Math.abs(z) <= box * (1 + 1e-9))) return false;
   for (const con of cons) {
     let v = con.c * step.tau - (con.g - con.c * t);
     for (let i = 0; i < step.z.length; i++) v -= con.grad[i]! * step.z[i]!;

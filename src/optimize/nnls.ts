@@ -2,7 +2,7 @@
 // Hanson ("Solving Least Squares Problems", 1974, ch. 23). Used for strut forces: a KKT certificate needs
 // non-negative multipliers that balance the objective gradient (Ashton, Cantarella, Piatek, Rawdon 2011).
 import { Matrix } from 'ml-matrix';
-import { leastSquares } from './linalg.js';
+import { leastSquaresFullRank } from './linalg.js';
 
 /** Dual feasibility test, relative to |A|·|b|: a column whose gradient is this small cannot help. */
 const DUAL_REL_TOL = 1e-13;
@@ -107,7 +107,7 @@ function solvePassive(A: Matrix, b: ArrayLike<number>, passive: boolean[]): Floa
   for (let j = 0; j < passive.length; j++) if (passive[j]) cols.push(j);
   const sub = new Matrix(A.rows, cols.length);
   for (let i = 0; i < A.rows; i++) for (let k = 0; k < cols.length; k++) sub.set(i, k, A.get(i, cols[k]!));
-  const sol = leastSquares(sub, b);
+  const sol = leastSquaresFullRank(sub, b);
   const s = new Float64Array(passive.length);
   for (let k = 0; k < cols.length; k++) s[cols[k]!] = sol[k]!;
   return s;

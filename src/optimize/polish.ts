@@ -10,14 +10,15 @@ import { Matrix } from 'ml-matrix';
 import { posedAt, type Chart } from './chart.js';
 import { evaluate, type Constraint, type DepartureSpec } from './constraints.js';
 import { leastSquares } from './linalg.js';
+import { nnls } from './nnls.js';
 
 /** KKT residual (scaled to the length scale) at which the polish stops. */
 export const POLISH_RESIDUAL_TOL = 1e-13;
 const POLISH_MAX_ITERATIONS = 30;
 /** Central-difference step for the Lagrangian Hessian, relative to the length scale. */
 const HESSIAN_STEP_REL = 1e-6;
-/** A multiplier below -this (relative to the largest) means the constraint should leave the active set. */
-const NEGATIVE_FORCE_REL = 1e-8;
+/** Balance residual of the non-negative forces (relative) accepted at the end of the polish. */
+const FORCE_BALANCE_TOL = 1e-9;
 
 export interface PolishResult {
   ok: boolean;
@@ -41,17 +42,19 @@ export function polish(
     const r = newton(chart, active, t0, lambda0x, scale, dep);
     iterations += r.iterations;
     if (!r.ok) return { ...r, iterations };
-    let lmax = 0, worst = -1, worstVal = 0;
+    // Forces are not unique at degenerate optima: ask for non-negative ones at the converged point.
+    const forces = nonNegativeForces(chart, r.active, r.z, dep);
+    if (forces !== null) return { ...r, lambda: forces, iterations };
+    let worst = -1, worstVal = 0;
     r.lambda.forEach((l, k) => {
-      lmax = Math.max(lmax, Math.abs(l));
       if (l < worstVal) {
         worstVal = l;
         worst = k;
       }
     });
-    if (worst < 0 || worstVal >= -NEGATIVE_FORCE_REL * lmax) return { ...r, iterations };
-    // A negative force: that constraint is not binding; drop it and solve again from here.
-    active = r.active.filter((_, k) => k !== worst);
+    if (worst < 0) return { ...r, ok: false, iterations, message: 'no non-negative forces balance the active set' };
+    // A negative force: that constraint is not binding; drop it and solve again from the start.
+    active = active.filter((_, k) => k !== worst);
     lambda0x = Float64Array.from(r.lambda.filter((_, k) => k !== worst).map((l) => Math.max(l, 0)));
   }
   return { ok: false, z: new Float64Array(chart.nFree), t: t0, lambda: lambda0x, active, iterations, residual: Infinity, message: 'active set did not settle' };
@@ -67,12 +70,12 @@ function newton(
   let z = new Float64Array(n);
   let t = t0;
   let lambda = Float64Array.from(lambda0);
-  let F = residual(chart, cons, z, t, lambda, L, dep, true);
+  let F = kktResidual(chart, cons, z, t, lambda, L, dep, true);
   if (F === null) return failed('a strut was lost at the start', cons, z, t, lambda);
   let norm = vecNorm(F);
   let it = 0;
   for (; it < POLISH_MAX_ITERATIONS && norm > POLISH_RESIDUAL_TOL; it++) {
-    const J = jacobian(chart, cons, z, lambda, L, dep);
+    const J = kktJacobian(chart, cons, z, lambda, L, dep);
     if (J === null) return failed('a strut was lost while differencing', cons, z, t, lambda);
     const step = leastSquares(J, F.map((v) => -v));
     // Damped: halve until the residual drops.
@@ -83,7 +86,7 @@ function newton(
       const tTry = t + alpha * step[n]! * L;
       for (let k = 0; k < m; k++) lTry[k] = lambda[k]! + alpha * step[n + 1 + k]!;
       const snapshot = cons.map((k) => [k.ta, k.tb] as const);
-      const FTry = residual(chart, cons, zTry, tTry, lTry, L, dep, true);
+      const FTry = kktResidual(chart, cons, zTry, tTry, lTry, L, dep, true);
       if (FTry !== null && vecNorm(FTry) < norm * (1 - 1e-4 * alpha)) {
         z = zTry;
         t = tTry;
@@ -99,6 +102,7 @@ function newton(
       });
       alpha *= 0.5;
     }
+    if (process.env.THICKRING_DEBUG) console.error('  newton', it, norm, accepted, alpha);
     if (!accepted) break;
   }
   void N;
@@ -110,7 +114,7 @@ function newton(
 }
 
 /** [Σ λ ∇g ; 1 - Σ λ c ; (g - c t)/L], or null when a strut cannot be tracked. */
-function residual(
+export function kktResidual(
   chart: Chart, cons: Constraint[], z: Float64Array, t: number, lambda: Float64Array, L: number, dep: DepartureSpec | null, keep: boolean,
 ): number[] | null {
   const n = chart.nFree, m = cons.length;
@@ -130,7 +134,7 @@ function residual(
 }
 
 /** KKT Jacobian in the scaled unknowns (z/L, t/L, λ). */
-function jacobian(chart: Chart, cons: Constraint[], z: Float64Array, lambda: Float64Array, L: number, dep: DepartureSpec | null): Matrix | null {
+export function kktJacobian(chart: Chart, cons: Constraint[], z: Float64Array, lambda: Float64Array, L: number, dep: DepartureSpec | null): Matrix | null {
   const n = chart.nFree, m = cons.length;
   const N = n + 1 + m;
   const J = new Matrix(N, N);
@@ -172,6 +176,29 @@ function jacobian(chart: Chart, cons: Constraint[], z: Float64Array, lambda: Flo
   // Restore the stored gradients at z (the differencing overwrote them).
   for (let k = 0; k < m; k++) cons[k]!.grad.set(A[k]!);
   return J;
+}
+
+/** NNLS forces at z, or null when they do not balance to FORCE_BALANCE_TOL. */
+function nonNegativeForces(chart: Chart, cons: Constraint[], z: Float64Array, dep: DepartureSpec | null): Float64Array | null {
+  const n = chart.nFree, m = cons.length;
+  const posed = posedAt(chart, z);
+  const A = new Matrix(n + 1, m);
+  const b = new Float64Array(n + 1);
+  b[n] = 1;
+  for (let k = 0; k < m; k++) {
+    const con = cons[k]!;
+    if (!Number.isFinite(evaluate(con, chart, posed, true, dep, true))) return null;
+    for (let i = 0; i < n; i++) A.set(i, k, con.grad[i]!);
+    A.set(n, k, con.c);
+  }
+  const sol = nnls(A, b);
+  let largest = 1;
+  for (let k = 0; k < m; k++) {
+    let col = 0;
+    for (let i = 0; i <= n; i++) col += A.get(i, k) ** 2;
+    largest = Math.max(largest, sol.x[k]! * Math.sqrt(col));
+  }
+  return sol.residual / largest <= FORCE_BALANCE_TOL ? sol.x : null;
 }
 
 function failed(message: string, active: Constraint[], z: Float64Array, t: number, lambda: Float64Array): PolishResult {

@@ -115,14 +115,18 @@ async function runTask(task: PoolTask, thread: () => SolveThread): Promise<PoolR
 }
 
 /**
- * Start a worker. From source (tests, tsx) the worker is a .ts file run through tsx; from dist it is
- * the compiled .js next to this module's tree.
+ * Start a worker. From dist the worker is the compiled workers/solve.js. From source (tests, tsx) it
+ * is workers/solve.ts, loaded through tsx's ESM hooks registered inside the new thread: on Node 20
+ * `execArgv: ['--import', 'tsx']` left the worker unable to load .ts files.
  */
 function startThread(): SolveThread {
   const fromSource = import.meta.url.endsWith('.ts');
   const url = new URL(`../../workers/solve.${fromSource ? 'ts' : 'js'}`, import.meta.url);
   // stdout/stderr: true keeps the worker's writes off the process's stdout (--json prints one object).
-  const worker = new Worker(url, { execArgv: fromSource ? ['--import', 'tsx'] : [], stdout: true, stderr: true });
+  const streams = { stdout: true, stderr: true };
+  const worker = fromSource
+    ? new Worker(`import('tsx/esm/api').then((m) => { m.register(); return import(${JSON.stringify(url.href)}); });`, { ...streams, eval: true })
+    : new Worker(url, streams);
   const stderrTail: string[] = [];
   worker.stdout.on('data', () => {});
   worker.stderr.on('data', (chunk: Buffer) => {

@@ -3,10 +3,10 @@
 // then golden-section refinement of every sampled local minimum. No polynomial, no subdivision: shares nothing
 // with the kernel's method but the definition of a circle.
 
-export interface RefCircle { center: number[]; normal: number[]; radius: number }
+export interface RefCircle { center: ArrayLike<number>; normal: ArrayLike<number>; radius: number }
 export interface RefMin { s: number; d: number; depth: number }
 
-function frame(n: number[]): [number[], number[]] {
+function frame(n: ArrayLike<number>): [number[], number[]] {
   const l = Math.hypot(n[0]!, n[1]!, n[2]!);
   const z = [n[0]! / l, n[1]! / l, n[2]! / l];
   // Any perpendicular vector: cross with the axis least aligned with n (Gram–Schmidt style, not the kernel's basis).
@@ -37,7 +37,7 @@ export function refPointCircle2(p: number[], b: RefCircle): number {
 export function refMinima(a: RefCircle, b: RefCircle, samples = 2048): RefMin[] {
   const [ua, va] = frame(a.normal);
   const [ub, vb] = frame(b.normal);
-  const bn = b.normal.map((x) => x / Math.hypot(b.normal[0]!, b.normal[1]!, b.normal[2]!));
+  const bn = Array.from(b.normal).map((x) => x / Math.hypot(b.normal[0]!, b.normal[1]!, b.normal[2]!));
   const delta = (s: number): number[] => {
     const c = Math.cos(s), sn = Math.sin(s);
     return [0, 1, 2].map((i) => a.center[i]! + a.radius * (ua[i]! * c + va[i]! * sn) - b.center[i]!);

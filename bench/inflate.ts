@@ -1,0 +1,154 @@
+// Inflation benchmark: time to tol 1e-9 of single solves (hopf, chain:3, torus:3 with cyclic:3 and
+// without symmetry) and of a 16-start torus:3 multistart on 2 workers, with the same 16 starts on 1
+// worker as the baseline measured in the same run. Seeded; warm-up; median of repeats.
+// Targets: a single solve under 1 s, 16 starts under 10 s.
+// Run: npm run build && node dist/bench/inflate.js [--repeats N] [--json]
+import { packingBound } from '../src/optimize/bound.js';
+import { verifyOutcome, runMultistart } from '../src/optimize/multistart.js';
+import { solveInflate } from '../src/optimize/solve.js';
+import type { InflateProblem, SolveOutcome } from '../src/optimize/problem.js';
+import { knownOptimum } from '../src/model/catalog.js';
+import { resolveSpec } from '../src/model/spec.js';
+import { parseSymmetryOption } from '../src/model/symmetry.js';
+
+const SEED = 20261201;
+const TOL = 1e-9;
+const MAX_ITERATIONS = 400;
+const SINGLE_TARGET_S = 1;
+const MULTI_TARGET_S = 10;
+const MULTI_STARTS = 16;
+
+const args = process.argv.slice(2);
+const repeatsArg = args.indexOf('--repeats');
+const REPEATS = repeatsArg >= 0 ? Math.max(1, Number(args[repeatsArg + 1])) : 5;
+const MULTI_REPEATS = Math.max(1, Math.min(REPEATS, 3));
+const json = args.includes('--json');
+
+const median = (xs: number[]): number => {
+  const s = [...xs].sort((a, b) => a - b);
+  return s[Math.floor(s.length / 2)]!;
+};
+
+interface Row {
+  case: string;
+  runs: string;
+  medianSeconds: number;
+  minSeconds: number;
+  status: string;
+  tube: number;
+  /** (reference - tube) / reference against the known optimum, else the packing bound. */
+  gap: number;
+  reference: string;
+  iterations: number;
+  verified: boolean;
+  target: string;
+}
+
+function problemOf(spec: string, symmetry: string): InflateProblem {
+  const r = resolveSpec(spec);
+  return {
+    rings: r.layout.rings,
+    tubeRatios: r.layout.rings.map(() => 1),
+    linking: r.linking,
+    symmetry: parseSymmetryOption(symmetry, r.layout.rings.length),
+  };
+}
+
+function reference(spec: string, tubeBound: number | null): { value: number; name: string } {
+  const known = knownOptimum(resolveSpec(spec).catalog!);
+  if (known) return { value: known.tubeOverCore, name: `known ${known.formula}` };
+  return { value: tubeBound ?? NaN, name: 'packing bound' };
+}
+
+async function singleSolve(spec: string, symmetry: string): Promise<Row> {
+  const problem = problemOf(spec, symmetry);
+  const options = { tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05 };
+  // Warm-up: JIT, WebAssembly instantiation.
+  await solveInflate(problem, options);
+  const times: number[] = [];
+  let last: SolveOutcome | null = null;
+  for (let k = 0; k < REPEATS; k++) {
+    // Seeded starts differ per repeat (seed + k) but are the same in every run of the benchmark.
+    const t0 = performance.now();
+    last = await solveInflate(problem, { ...options, seed: SEED + k });
+    times.push((performance.now() - t0) / 1000);
+  }
+  const o = last!;
+  const ref = reference(spec, packingBound(problem.rings, problem.tubeRatios, problem.linking)?.tube ?? null);
+  const med = median(times);
+  return {
+    case: `${spec} --symmetry ${symmetry} (in-process solve)`,
+    runs: `${REPEATS}`,
+    medianSeconds: med,
+    minSeconds: Math.min(...times),
+    status: o.status,
+    tube: o.tube,
+    gap: (ref.value - o.tube) / ref.value,
+    reference: ref.name,
+    iterations: o.iterations,
+    verified: verifyOutcome(problem, o).ok,
+    target: med < SINGLE_TARGET_S ? `< ${SINGLE_TARGET_S} s met` : `< ${SINGLE_TARGET_S} s MISSED`,
+  };
+}
+
+async function multistart(spec: string, symmetry: string, workers: number, starts: number): Promise<Row> {
+  const problem = problemOf(spec, symmetry);
+  const times: number[] = [];
+  let tube = NaN, status = '', verified = false, iterations = 0, bound = NaN;
+  for (let k = 0; k < MULTI_REPEATS; k++) {
+    const t0 = performance.now();
+    const r = await runMultistart(problem, {
+      starts, workers, seed: SEED, tol: TOL, maxIterations: MAX_ITERATIONS, spec, command: 'bench', units: null,
+    });
+    times.push((performance.now() - t0) / 1000);
+    tube = r.tube;
+    status = r.status;
+    verified = r.verification.ok;
+    iterations = r.starts.reduce((s, x) => s + x.iterations, 0);
+    bound = r.bound?.tube ?? NaN;
+  }
+  const ref = reference(spec, bound);
+  const med = median(times);
+  return {
+    case: `${spec} --symmetry ${symmetry}, ${starts} starts on ${workers} worker${workers > 1 ? 's' : ''} (incl. worker start-up)`,
+    runs: `${MULTI_REPEATS}`,
+    medianSeconds: med,
+    minSeconds: Math.min(...times),
+    status,
+    tube,
+    gap: (ref.value - tube) / ref.value,
+    reference: ref.name,
+    iterations,
+    verified,
+    target: starts === MULTI_STARTS && workers === 2 ? (med < MULTI_TARGET_S ? `< ${MULTI_TARGET_S} s met` : `< ${MULTI_TARGET_S} s MISSED`) : 'baseline',
+  };
+}
+
+const rows: Row[] = [];
+for (const [spec, sym] of [['hopf', 'none'], ['chain:3', 'none'], ['torus:3', 'cyclic:3'], ['torus:3', 'none']] as const) {
+  rows.push(await singleSolve(spec, sym));
+  if (!json) console.error(`done: ${rows.at(-1)!.case}`);
+}
+// Warm-up of the pool path (worker start-up, disk cache), not recorded.
+await runMultistart(problemOf('hopf', 'none'), { starts: 2, workers: 2, seed: SEED, tol: TOL, spec: 'hopf', command: 'bench', units: null });
+rows.push(await multistart('torus:3', 'none', 2, MULTI_STARTS));
+if (!json) console.error(`done: ${rows.at(-1)!.case}`);
+rows.push(await multistart('torus:3', 'none', 1, MULTI_STARTS));
+if (!json) console.error(`done: ${rows.at(-1)!.case}`);
+
+if (json) {
+  console.log(JSON.stringify({ seed: SEED, tol: TOL, maxIterations: MAX_ITERATIONS, rows }));
+} else {
+  const head = ['case', 'runs', 'median (s)', 'min (s)', 'status', 'tube (R = 1)', 'gap to reference (dimensionless)', 'reference', 'iterations', 'verified', 'target'];
+  const body = rows.map((r) => [
+    r.case, r.runs, r.medianSeconds.toFixed(3), r.minSeconds.toFixed(3), r.status, r.tube.toPrecision(12),
+    r.gap.toExponential(2), r.reference, String(r.iterations), r.verified ? 'yes' : 'NO', r.target,
+  ]);
+  const w = head.map((h, k) => Math.max(h.length, ...body.map((b) => b[k]!.length)));
+  const line = (cells: string[]): string => cells.map((c, k) => c.padEnd(w[k]!)).join('  ');
+  console.log(`thickring inflate benchmark (seed ${SEED}, tol ${TOL}, at most ${MAX_ITERATIONS} iterations per solve; times in seconds)`);
+  console.log(line(head));
+  for (const b of body) console.log(line(b));
+  const two = rows.at(-2)!, one = rows.at(-1)!;
+  console.log(`speed-up of 2 workers over 1 on ${MULTI_STARTS} starts: ${(one.medianSeconds / two.medianSeconds).toFixed(2)}x (dimensionless)`);
+}

@@ -1,0 +1,66 @@
+// Second-order test at a Kuhn–Tucker point: the Hessian of the Lagrangian, W = Σ λ_k ∇²g_k, must be
+// negative semidefinite on the critical subspace {dz : ∇g_k·dz = 0 for every k with λ_k > 0} for a
+// local maximum (the standard second-order necessary condition; along that subspace t does not change to
+// first order). A positive eigenvalue means a saddle: a symmetric arrangement is often a maximum among
+// symmetric ones but a saddle among all, and the eigenvector is the way out.
+import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
+import type { Chart } from './chart.js';
+import type { Constraint, DepartureSpec } from './constraints.js';
+import { kktJacobian } from './polish.js';
+
+/** Multipliers below this fraction of the largest do not restrict the critical subspace. */
+const POSITIVE_FORCE_REL = 1e-9;
+/** Singular values of the active gradients below this fraction of the largest span the critical subspace. */
+const NULL_REL = 1e-9;
+
+export interface Curvature {
+  /** Largest eigenvalue of W on the critical subspace, times the length scale (dimensionless). */
+  maxCurvature: number;
+  /** Its eigenvector in chart coordinates (unit length), or null when the subspace is trivial. */
+  direction: Float64Array | null;
+}
+
+export function criticalCurvature(
+  chart: Chart, active: Constraint[], lambda: Float64Array, L: number, dep: DepartureSpec | null,
+): Curvature | null {
+  const n = chart.nFree, m = active.length;
+  if (n === 0) return { maxCurvature: 0, direction: null };
+  const J = kktJacobian(chart, active, new Float64Array(n), lambda, L, dep);
+  if (J === null) return null;
+  let lmax = 0;
+  for (const l of lambda) lmax = Math.max(lmax, l);
+  const rows: number[] = [];
+  for (let k = 0; k < m; k++) if (lambda[k]! > POSITIVE_FORCE_REL * lmax) rows.push(k);
+  // Null space of the binding gradients (rows n+1+k, columns 0..n-1 of the KKT Jacobian).
+  let N: Matrix;
+  if (rows.length === 0) {
+    N = Matrix.eye(n, n);
+  } else {
+    const A = new Matrix(Math.max(rows.length, n), n);
+    rows.forEach((k, r) => {
+      for (let i = 0; i < n; i++) A.set(r, i, J.get(n + 1 + k, i));
+    });
+    const svd = new SingularValueDecomposition(A);
+    const s = svd.diagonal;
+    const smax = s.reduce((a, v) => Math.max(a, v), 0);
+    const V = svd.rightSingularVectors;
+    const cols: number[] = [];
+    for (let j = 0; j < n; j++) if (!((s[j] ?? 0) > NULL_REL * smax)) cols.push(j);
+    if (cols.length === 0) return { maxCurvature: 0, direction: null };
+    N = new Matrix(n, cols.length);
+    cols.forEach((j, c) => {
+      for (let i = 0; i < n; i++) N.set(i, c, V.get(i, j));
+    });
+  }
+  const W = J.subMatrix(0, n - 1, 0, n - 1);
+  const H = N.transpose().mmul(W).mmul(N);
+  const Hs = H.add(H.transpose()).mul(0.5);
+  const evd = new EigenvalueDecomposition(Hs, { assumeSymmetric: true });
+  const ev = evd.realEigenvalues;
+  let best = 0;
+  for (let k = 1; k < ev.length; k++) if (ev[k]! > ev[best]!) best = k;
+  const dir = N.mmul(evd.eigenvectorMatrix.subMatrix(0, ev.length - 1, best, best)).getColumn(0);
+  const norm = Math.hypot(...dir);
+  // J's W block is already in the scaled coordinates (z / L), so its eigenvalues are dimensionless.
+  return { maxCurvature: ev[best]!, direction: norm > 0 ? Float64Array.from(dir.map((v) => v / norm)) : null };
+}

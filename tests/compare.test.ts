@@ -1,0 +1,158 @@
+// thickring compare: rigid alignment of two optima, the choice of symmetry, and (with the optimizer)
+// symmetric vs symmetry-broken optima of torus:3 and of the Hopf link, with the symmetry-breaking curve.
+import { describe, expect, it } from 'vitest';
+import { main } from '../cli/main.js';
+import type { Io } from '../cli/io.js';
+import { alignRings, type PoseLike } from '../src/analyze/align.js';
+import { compare, compareSymmetry, naturalSymmetry } from '../src/analyze/compare.js';
+import { symmetryBreakingSweep } from '../src/analyze/sweep.js';
+import { verifyConfiguration } from '../src/analyze/verify.js';
+import { InputError } from '../src/model/errors.js';
+import { resolveSpec } from '../src/model/spec.js';
+import { ringOrbits, symmetryDeparture } from '../src/model/symmetry.js';
+import type { Symmetry, Vec3 } from '../src/model/types.js';
+import { normalize, rotate } from '../src/model/vec.js';
+
+const CYCLIC3: Symmetry = { type: 'cyclic', order: 3, axis: [0, 0, 1], origin: [0, 0, 0] };
+
+function rings(): PoseLike[] {
+  // An arbitrary chiral arrangement (no symmetry), four rings of different radii.
+  return [
+    { name: 'A', center: [0.1, 0.2, -0.3], normal: normalize([0.2, 0.1, 1]), radius: 1 },
+    { name: 'B', center: [1.3, -0.4, 0.2], normal: normalize([1, 0.3, -0.2]), radius: 1.4 },
+    { name: 'C', center: [-0.7, 0.9, 0.5], normal: normalize([-0.1, 1, 0.4]), radius: 0.8 },
+    { name: 'D', center: [0.4, 0.6, 1.6], normal: normalize([0.5, -0.5, 0.7]), radius: 1.1 },
+  ];
+}
+
+function moved(rs: PoseLike[], axis: Vec3, angle: number, shift: Vec3): PoseLike[] {
+  const k = normalize(axis);
+  return rs.map((r) => {
+    const c = rotate(r.center, k, angle);
+    return { ...r, center: [c[0] + shift[0], c[1] + shift[1], c[2] + shift[2]], normal: rotate(r.normal, k, angle) };
+  });
+}
+
+describe('best rigid alignment (Horn 1987, unit quaternions)', () => {
+  it('undoes a known rotation and translation exactly: no ring moves or tilts', () => {
+    // Horn, J. Opt. Soc. Am. A 4(4), 1987: the closed form is exact for noise-free corresponding data.
+    const a = rings();
+    const b = moved(a, [0.3, -1, 0.5], 2.1, [3, -1, 0.25]);
+    const al = alignRings(b, a);
+    expect(al.rms).toBeLessThan(1e-12);
+    for (const r of al.rings) {
+      expect(r.displacement).toBeLessThan(1e-12);
+      expect(r.tiltDegrees).toBeLessThan(1e-5);
+    }
+  });
+
+  it('ignores the direction of a ring axis (a flipped normal is the same ring)', () => {
+    const a = rings();
+    const b = moved(a, [1, 1, 0], 0.7, [0, 0, 1]);
+    b[2] = { ...b[2]!, normal: [-b[2]!.normal[0]!, -b[2]!.normal[1]!, -b[2]!.normal[2]!] };
+    const al = alignRings(b, a);
+    expect(al.rms).toBeLessThan(1e-12);
+    expect(Math.max(...al.rings.map((r) => r.tiltDegrees))).toBeLessThan(1e-5);
+  });
+
+  it('does not align a mirror image: only proper rotations are allowed', () => {
+    const a = rings();
+    const mirror = a.map((r) => ({ ...r, center: [-r.center[0]!, r.center[1]!, r.center[2]!], normal: [-r.normal[0]!, r.normal[1]!, r.normal[2]!] }));
+    expect(alignRings(mirror, a).rms).toBeGreaterThan(0.05);
+  });
+
+  it('reports one ring moved by a known amount when the rest are the same', () => {
+    // Two rings fixed far apart dominate the fit; moving a third by 0.01 shows up as about 0.01.
+    const a: PoseLike[] = [
+      { name: 'A', center: [-5, 0, 0], normal: [0, 0, 1], radius: 1 },
+      { name: 'B', center: [5, 0, 0], normal: [0, 1, 0], radius: 1 },
+      { name: 'C', center: [0, 5, 0], normal: [1, 0, 0], radius: 1 },
+      { name: 'D', center: [0, 0, 0], normal: [0, 0, 1], radius: 1 },
+    ];
+    const b = a.map((r) => (r.name === 'D' ? { ...r, center: [0, 0, 0.01] } : r));
+    const al = alignRings(b, a);
+    // Least squares spreads the move: D keeps 3/4 of it and each other ring takes 1/4 (centroid shift).
+    expect(al.rings[3]!.displacement).toBeCloseTo(0.0075, 6);
+    expect(al.rings[0]!.displacement).toBeCloseTo(0.0025, 6);
+  });
+});
+
+describe('which symmetry compare breaks', () => {
+  it('takes the catalogue layout\'s own group: dihedral D_2 for the Hopf link, D_3 for torus:3', () => {
+    // N Hopf fibres through N equally spaced points are carried into each other by the N-fold turn and
+    // by the half-turns about the perpendicular axes (dihedral D_N) — the catalogue's construction.
+    expect(naturalSymmetry(resolveSpec('hopf').layout.rings)).toMatchObject({ type: 'dihedral', order: 2 });
+    expect(naturalSymmetry(resolveSpec('torus:3').layout.rings)).toMatchObject({ type: 'dihedral', order: 3 });
+  });
+
+  it('refuses none, and a layout file with no symmetry section, with a message that says what to pass', () => {
+    const torus = resolveSpec('torus:3');
+    expect(() => compareSymmetry(torus, null)).toThrow(InputError);
+    const asFile = { ...torus, source: 'file' as const, catalog: null, spec: 'my-layout.json' };
+    expect(() => compareSymmetry(asFile, undefined)).toThrow(/--symmetry cyclic:N or dihedral:N/);
+    expect(() => compareSymmetry(torus, { type: 'cyclic', order: 4, axis: [0, 0, 1], origin: [0, 0, 0] })).toThrow(/does not divide the ring count 3/);
+  });
+
+  it('exits 2 before any solve for an order that does not divide the ring count', async () => {
+    const err: string[] = [];
+    const io: Io = { out: () => {}, err: (t) => err.push(t), interactive: false };
+    expect(await main(['compare', 'torus:3', '--symmetry', 'cyclic:4'], io)).toBe(2);
+    expect(err.join('')).toMatch(/cyclic:4.*does not divide the ring count 3/);
+    expect(await main(['compare', 'torus:3', '--symmetry', 'none'], io)).toBe(2);
+  });
+});
+
+describe('symmetric vs broken optimum (runs the optimizer)', () => {
+  const tol = 1e-9;
+  const options = { starts: 2, perturbedStarts: 2, workers: 2, seed: 0, tol, sweepPoints: 4 };
+
+  it('torus:3: breaking cyclic:3 gives a strictly thicker tube, and the curve rises from one to the other', async () => {
+    const spec = resolveSpec('torus:3');
+    const c = await compare(spec, { ...options, symmetry: CYCLIC3 });
+    const R = 1;
+    expect(c.symmetric.status).toMatch(/optimal|stalled/);
+    expect(c.broken.status).toMatch(/optimal|stalled/);
+    // The symmetric optimum really is cyclic:3 symmetric.
+    expect(symmetryDeparture(c.symmetric.rings, CYCLIC3)).toBeLessThan(1e-9);
+    // Unconstrained strictly thicker (by far more than the tolerance).
+    expect(c.broken.tube).toBeGreaterThan(c.symmetric.tube * (1 + 1e-4));
+    expect(c.gain).toBeCloseTo(c.broken.tube - c.symmetric.tube, 15);
+    // Both below the packing bound: two rings through each ring, so r <= R/3 (Kravitz 1967; Graham et al. 1998).
+    expect(c.broken.tube).toBeLessThanOrEqual(R / 3 + 1e-12);
+    // Independent re-check of both optima (verify.ts: brute-force distances, Gauss linking integral).
+    for (const r of [c.symmetric, c.broken]) {
+      const v = verifyConfiguration({ rings: r.rings, tube: r.tube, linking: spec.linking });
+      expect(v.ok, v.messages.join('; ')).toBe(true);
+    }
+    // The curve: symmetric value at ε = 0, monotone non-decreasing, ending at the unconstrained value.
+    expect(c.sweep[0]).toMatchObject({ epsilon: 0, tube: c.symmetric.tube });
+    for (let k = 1; k < c.sweep.length; k++) {
+      expect(c.sweep[k]!.epsilon).toBeGreaterThan(c.sweep[k - 1]!.epsilon);
+      expect(c.sweep[k]!.tube).toBeGreaterThanOrEqual(c.sweep[k - 1]!.tube);
+    }
+    expect(c.sweep[c.sweep.length - 1]!.tube).toBeGreaterThanOrEqual(c.broken.tube * (1 - 1e-6));
+    expect(c.sweep.some((p) => p.tube > c.symmetric.tube * (1 + 1e-6) && p.tube < c.broken.tube * (1 - 1e-6))).toBe(true);
+    expect(c.verification.messages.join('\n')).toMatch(/sweep ends re-checked independently: ε = 0 passed, ε = [\d.e-]+ passed/);
+    expect(c.changes.map((ch) => ch.name)).toEqual(['A', 'B', 'C']);
+
+    // Every configuration behind a curve point is feasible (independent check) and within its ε.
+    const sweep = await symmetryBreakingSweep({ tubeRatios: [1, 1, 1], linking: spec.linking }, CYCLIC3, c.symmetric, c.broken, {
+      tol, seed: 7, workers: 2, points: 2, spec: 'torus:3', units: null,
+    });
+    const orbits = ringOrbits(c.symmetric.rings, CYCLIC3);
+    for (const cfg of sweep.configurations) {
+      const v = verifyConfiguration({ rings: cfg.rings, tube: cfg.tube, linking: spec.linking });
+      expect(v.ok, `ε = ${cfg.epsilon}: ${v.messages.join('; ')}`).toBe(true);
+      expect(symmetryDeparture(cfg.rings, CYCLIC3, orbits)).toBeLessThanOrEqual(cfg.epsilon * (1 + 1e-6) + 1e-9);
+    }
+  }, 600_000);
+
+  it('hopf: nothing to gain — the symmetric optimum R/2 is already the thickest (Cantarella–Kusner–Sullivan 2002)', async () => {
+    const c = await compare(resolveSpec('hopf'), options);
+    expect(c.symmetric.symmetry).toMatchObject({ type: 'dihedral', order: 2 });
+    expect(c.symmetric.tube).toBeCloseTo(0.5, 7);
+    expect(c.broken.tube).toBeCloseTo(0.5, 7);
+    expect(Math.abs(c.gain)).toBeLessThanOrEqual(1e-6 * c.symmetric.tube);
+    for (const p of c.sweep) expect(p.tube).toBeCloseTo(0.5, 7);
+  }, 300_000);
+});
