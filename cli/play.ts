@@ -73,7 +73,7 @@ function positive(text: string, flag: string, what: string): number {
 }
 
 function vec(v: readonly number[]): string {
-  return `(${v.map((c) => c.toFixed(3)).join(', ')})`;
+  return `(${v.map((c) => (Math.abs(c) < 5e-4 ? 0 : c).toFixed(3)).join(', ')})`;
 }
 
 function table(head: string[], rows: string[][]): string {

@@ -1,12 +1,16 @@
 // Catalogue starts: intended linking (checked twice, by the topology module's disk-crossing count and
 // by the checker's Gauss integral), no intersections, centred on the origin, and the symmetry claimed
 // in catalogEntries() (checked with rotation matrices written out here, and with src/model/symmetry).
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { coreDistance, gaussLinking } from '../src/analyze/verify.js';
 import {
   catalogEntries, catalogLayout, knownOptimum, linkingPattern, naturalSymmetry, parseCatalogSpec,
 } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
+import { resolveSpec } from '../src/model/spec.js';
 import { ringOrbits, symmetryDeparture } from '../src/model/symmetry.js';
 import type { Layout, Ring, Vec3 } from '../src/model/types.js';
 import { linkingMatrix } from '../src/topology/index.js';
@@ -138,6 +142,47 @@ describe('catalogue entries', () => {
     expect(knownOptimum(parseCatalogSpec('chain:5'))?.tubeOverCore).toBeCloseTo(r2 / (1 + r2), 15);
     expect(knownOptimum(parseCatalogSpec('star:2'))?.tubeOverCore).toBeCloseTo(r2 / (1 + r2), 15);
     expect(knownOptimum(parseCatalogSpec('torus:3'))).toBeNull();
+  });
+});
+
+describe('resolveSpec', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'thickring-spec-'));
+  const file = (name: string, rings: object[]): string => {
+    const path = join(dir, name);
+    writeFileSync(path, JSON.stringify({ format: 'thickring-layout/1', rings }));
+    return path;
+  };
+  const A = { name: 'A', center: [0, 0, 0], normal: [0, 0, 1], radius: 1 };
+  const B = { name: 'B', center: [1, 0, 0], normal: [0, 1, 0], radius: 1 };
+
+  it('reads catalogue specs and layout files, keeping the layout\'s signed linking matrix', () => {
+    const cat = resolveSpec('chain:3');
+    expect(cat.source).toBe('catalog');
+    expect(cat.spec).toBe('chain:3');
+    const path = file('hopf.json', [A, B]);
+    const f = resolveSpec(path);
+    expect(f.source).toBe('file');
+    // B crosses A's disk at the origin moving along +z = n_A: lk = +1 (disk-crossing definition, Rolfsen 5D).
+    expect(f.linking).toEqual([[0, 1], [1, 0]]);
+    expect(f.tubeRatios).toEqual([1, 1]);
+  });
+
+  it('different tube values in a layout are read as ratios to the thickest', () => {
+    const f = resolveSpec(file('ratios.json', [{ ...A, tube: 0.2 }, { ...B, tube: 0.1 }]));
+    expect(f.tubeRatios).toEqual([1, 0.5]);
+    expect(f.notes.join(' ')).toMatch(/ratios/);
+  });
+
+  it('--radii on a layout file must keep its link', () => {
+    const path = file('hopf2.json', [A, B]);
+    expect(resolveSpec(path, { radii: [1.2] }).layout.rings.map((r) => r.radius)).toEqual([1.2, 1.2]);
+    // With A's radius 3, B (crossing z = 0 at x = 0 and x = 2) passes through A's disk twice: unlinked.
+    expect(() => resolveSpec(path, { radii: [3, 1] })).toThrow(/--radii 3,1: .*no longer linked/);
+  });
+
+  it('refuses the unlink and rings that nothing holds (Freedman & Skora 1987)', () => {
+    expect(() => resolveSpec(file('apart.json', [A, { ...B, center: [5, 0, 0] }]))).toThrow(/no two rings are linked/);
+    expect(() => resolveSpec(file('one.json', [A]))).toThrow(/at least two linked rings/);
   });
 });
 

@@ -39,7 +39,7 @@ describe('thickring inflate', () => {
     const r = JSON.parse(io.stdout[0]!) as SolveResult;
     for (const key of ['tube', 'rings', 'status', 'aspectRatio']) expect(r).toHaveProperty(key);
     expect(r.format).toBe('thickring-result/1');
-    expect(r.status).toBe('optimal');
+    expect(['optimal', 'stalled']).toContain(r.status);
     expect(Math.abs(r.tube - 0.5)).toBeLessThan(1e-8);
     expect(verifyRings(r.rings, r.tube, r.linking).ok).toBe(true);
     // One progress line per finished start on stderr when not interactive.

@@ -96,6 +96,34 @@ describe('closed forms (Eberly, "Distance to Circles in 3D"; references.md)', ()
     expect(dist3(s.onB, [c - R, 0, 0])).toBeLessThan(1e-10);
   });
 
+  it('hand-derived: A crossing B\'s axis on a grid angle keeps the minimum beside the cusp (regression)', () => {
+    // A: unit circle in the xy-plane centred (0,-s,0); B: unit circle in the xz-plane centred (1,0,0), axis the
+    // line x = 1, z = 0. A(0) = (1,-s,0) lies on that axis (a cusp maximum of the distance). The nearest point is
+    // A(π/2) = (0, 1-s, 0): its height over B's plane is |1-s| and its distance from B's axis equals R_B = 1,
+    // so d = |1 - s| (hand derivation, also checked by the brute force).
+    for (const s of [0.5, 2, 1.25]) {
+      const a = circle([0, -s, 0], [0, 0, 1], 1), b = circle([1, 0, 0], [0, 1, 0], 1);
+      const expected = Math.abs(1 - s);
+      expect(ringDistance(a, b).distance).toBeCloseTo(expected, 13);
+      expect(ringDistance(b, a).distance).toBeCloseTo(expected, 13);
+      expect(Math.min(...refMinima(a, b).map((m) => m.d))).toBeCloseTo(expected, 10);
+    }
+  });
+
+  it('a tight Hopf pair moved by 1e-7 is not a continuum: the cusp-side minimum is found (regression)', () => {
+    // Lifting A by e along its own normal breaks the on-tube relation only near the cusp where A passes B's
+    // axis; 16 evenly spread samples cannot see that, so the continuum test must look there. Values are
+    // checked against the brute force (which samples the cusp densely), not derived.
+    for (const e of [1e-7, 1e-5, 1e-3]) {
+      const a = circle([0, 0, e], [0, 0, 1], 1), b = circle([1, 0, 0], [0, 1, 0], 1);
+      const ref = Math.min(...refMinima(a, b).map((m) => m.d));
+      const res = ringDistance(a, b);
+      expect(res.continuum).toBeNull();
+      expect(res.distance).toBeCloseTo(ref, 12);
+      expect(ringDistance(b, a).distance).toBeCloseTo(ref, 12);
+    }
+  });
+
   it('point–circle distance matches d^2 = (n.Δ)^2 + (|Δ - (n.Δ)n| - r)^2 (Eberly) via the plain parametrisation', () => {
     const r = rng(4);
     for (let i = 0; i < 200; i++) {

@@ -204,6 +204,20 @@ describe('invariance under a rigid motion of the whole layout (house style: ever
     }
   });
 
+  it('does not depend on the order of the rings', async () => {
+    const base = hopfRings(1);
+    for (const t of [0.5, 0.35]) {
+      const a = await analyzePlay(resultOf(base, 0.5), { tube: t });
+      const b = await analyzePlay(resultOf([base[1]!, base[0]!], 0.5), { tube: t });
+      expect(b.locked).toBe(a.locked);
+      expect(b.freeDimension).toBe(a.freeDimension);
+      for (const ring of a.play.rings) {
+        const other = b.play.rings.find((r) => r.name === ring.name)!;
+        ring.entries.forEach((e, j) => expect(other.entries[j]!.amount).toBeCloseTo(e.amount, 6));
+      }
+    }
+  });
+
   it('scales lengths and keeps angles when the layout is scaled by 1e3', async () => {
     const big = hopfRings(1000);
     const a = await analyzePlay(resultOf(hopfRings(1), 0.5), { tube: 0.4 });

@@ -4,7 +4,7 @@
 // quaternion method on ring centres and normals: see align.ts), the packing bound and gap of both, and
 // the symmetry-breaking curve (sweep.ts).
 import { alignRings, applyAlignment } from './align.js';
-import { symmetryBreakingSweep, type SweepProgress } from './sweep.js';
+import { symmetryBreakingSweep, type SweepOutcome, type SweepProgress } from './sweep.js';
 import { verifyConfiguration } from './verify.js';
 import { InputError } from '../model/errors.js';
 import type { CompareResult, SolveResult } from '../model/result.js';
@@ -32,6 +32,8 @@ export interface CompareOptions {
   /** Steps of the symmetry-breaking curve (default 6); 0 skips the curve. */
   sweepPoints?: number;
   onProgress?: (e: CompareProgress) => void;
+  /** Receives the sweep with the configuration behind every point (not kept in the result file). */
+  onSweep?: (sweep: SweepOutcome) => void;
 }
 
 export type ComparePhase = 'symmetric' | 'perturbed' | 'independent' | 'sweep';
@@ -99,6 +101,7 @@ export async function compare(resolved: ResolvedSpec, options: CompareOptions): 
         options.onProgress?.({ phase: 'sweep', done: e.done, total: e.total, tube: e.tube, bestTube: e.tube, epsilon: e.epsilon });
       },
     });
+    options.onSweep?.(out);
     sweep = out.points;
     messages.push(...out.messages);
     const end = out.configurations[out.configurations.length - 1]!;

@@ -59,6 +59,10 @@ export interface SecondOrderOptions {
 /** Slopes (dimensionless) and curvatures (per layout unit, times the length scale) below these are zero. */
 export const SLOPE_TOL = 1e-5;
 export const CURVATURE_TOL = 1e-5;
+/** The pair-level check fits pair distances (minima over contacts, one-sided, step 1e-3): its curvature is
+ * good to about 1e-5 on smooth motions but a corrected curve adds higher-order terms, so it calls a
+ * curvature below this (times the length scale) flat. */
+export const PAIR_CURVATURE_TOL = 1e-3;
 
 /**
  * Move along the rigid velocities x (one per ring; with options.correction, along s x + (s²/2) y) and
@@ -185,7 +189,7 @@ export async function secondOrderSearch(
   // Candidates: flexes on which the stress form is not negative, best first; a one-way flex must open
   // (not close) the contacts outside E at first order, so try both signs.
   let bestMargin = -Infinity;
-  let flexible: number[] | null = null;
+  let flexible: { x: number[]; y: number[] } | null = null;
   for (const [value, col] of order) {
     if (value < -tol) break;
     const x0 = unit(combine(basis, evd.eigenvectorMatrix.getColumn(col)));
@@ -207,13 +211,13 @@ export async function secondOrderSearch(
           detail: 'a first-order flex with a second-order correction opens every active contact',
         };
       }
-      if (lp.margin >= -tol && flexible === null) flexible = x;
+      if (lp.margin >= -tol && flexible === null) flexible = { x, y: lp.y };
     }
   }
   if (flexible !== null) {
     return {
-      ...none, outcome: 'flexible', direction: flexible, stressFormEigenvalues: eigen, margin: bestMargin,
-      along: secondOrderAlong(rings, velocities(frame, flexible), options),
+      ...none, outcome: 'flexible', direction: flexible.x, correction: flexible.y, stressFormEigenvalues: eigen, margin: bestMargin,
+      along: secondOrderAlong(rings, velocities(frame, flexible.x), { ...options, correction: velocities(frame, flexible.y) }),
       detail: 'a first-order flex keeps every contact to second order: the set may move without thickening',
     };
   }
@@ -314,14 +318,16 @@ async function correctionLp(
   if (best.status !== 'optimal') return null;
   const margin = best.values.get('mu') ?? -Infinity;
   let yz = Array.from({ length: m }, (_, a) => best.values.get(`y${a}`) ?? 0);
-  if (margin > 0) {
-    // The smallest correction (1-norm) that keeps half the margin: a large y makes the curve s x + (s²/2) y
-    // bend sharply, and the second-order model then holds only for tiny steps.
+  if (Number.isFinite(margin)) {
+    // The smallest correction (1-norm) that keeps half the margin (or, without a margin, stays within the
+    // curvature tolerance of it): a large y bends the curve s x + (s²/2) y sharply, and the second-order
+    // model then holds only for tiny steps.
+    const target = margin > 0 ? margin / 2 : margin - CURVATURE_TOL / L;
     const small = await solveLp({
       sense: 'minimize',
       objective: Array.from({ length: m }, (_, a) => [`w${a}`, 1] as [string, number]),
       rows: [
-        ...rows(margin / 2),
+        ...rows(target),
         ...Array.from({ length: m }, (_, a) => ({ terms: [[`w${a}`, 1], [`y${a}`, -1]] as [string, number][], sense: '>=' as const, rhs: 0 })),
         ...Array.from({ length: m }, (_, a) => ({ terms: [[`w${a}`, 1], [`y${a}`, 1]] as [string, number][], sense: '>=' as const, rhs: 0 })),
       ],
@@ -405,8 +411,8 @@ function displace(r: RingPose, vx: RingVelocity, vy: RingVelocity | undefined | 
 function verdictOf(c1: number, c2L: number): PairVerdict {
   if (c1 > SLOPE_TOL) return 'opens-first-order';
   if (c1 < -SLOPE_TOL) return 'closes-first-order';
-  if (c2L > CURVATURE_TOL) return 'opens-second-order';
-  if (c2L < -CURVATURE_TOL) return 'closes-second-order';
+  if (c2L > PAIR_CURVATURE_TOL) return 'opens-second-order';
+  if (c2L < -PAIR_CURVATURE_TOL) return 'closes-second-order';
   return 'flat';
 }
 

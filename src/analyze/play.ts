@@ -244,11 +244,12 @@ export function describeMotion(
     if (bits.length > 0) parts.push(`ring ${m.name} ${bits.join(' while it ')}`);
   });
   const how = kind === 'reversible' ? 'both ways' : kind === 'one-way' ? 'one way only' : 'escape';
+  const bent = secondOrder !== 'closes' && kind === 'reversible' ? ' (with a second-order correction where one is needed)' : '';
   const second = kind === 'escape'
     ? (secondOrder === 'opens' ? 'every contact opens (with its second-order correction, where one is needed)'
       : 'the pair-level check along it is inconclusive')
     : secondOrder === 'closes' ? 'closes a contact at second order (blocked)'
-      : secondOrder === 'opens' ? 'opens every contact at second order' : 'keeps the contacts to second order';
+      : secondOrder === 'opens' ? `opens every contact at second order${bent}` : `keeps the contacts to second order${bent}`;
   const description = parts.length === 0
     ? `(${how}) no ring moves relative to ring ${rings[anchor]!.name}`
     : `(${how}; ring ${rings[anchor]!.name} held still; per unit step) ${parts.join('; ')}; ${second}`;
@@ -288,7 +289,7 @@ export function axisName(u: Vec3): string {
   for (let k = 0; k < 3; k++) {
     if (Math.abs(Math.abs(u[k]!) - 1) < 1e-6) return `${u[k]! > 0 ? '+' : '-'}${names[k]}`;
   }
-  return `(${u.map((c) => c.toFixed(3)).join(', ')})`;
+  return `(${u.map((c) => (Math.abs(c) < 5e-4 ? 0 : c).toFixed(3)).join(', ')})`;
 }
 
 export function fmt(v: number): string {

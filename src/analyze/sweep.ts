@@ -64,8 +64,11 @@ export const SATURATION_REL_MIN = 1e-6;
 export const SATURATION_TOL_FACTOR = 100;
 /** Perturbation of the warm start, relative to each ring's radius (dimensionless). */
 const WARM_PERTURBATION = 0.01;
-/** A solve may exceed ε by this much (relative to ε) and still count: the constraint is met to solver tolerance. */
-const DEPARTURE_SLACK_REL = 1e-6;
+/**
+ * A solve may exceed ε by this much (relative to ε) and still count — the solver meets the bound only to
+ * its own tolerance; such a point is plotted at the departure it really has, so the curve stays honest.
+ */
+const DEPARTURE_SLACK_REL = 1e-2;
 /** ... plus this much relative to the smallest core radius, for ε near 0. */
 const DEPARTURE_SLACK_ABS_REL = 1e-9;
 /** When the two optima coincide, the curve is still shown flat out to this departure (× smallest core radius). */
@@ -104,31 +107,42 @@ export async function symmetryBreakingSweep(
   const epsMax = flat ? Math.max(brokenDeparture, FLAT_SHOW_REL * minRadius) : brokenDeparture;
   const grid = flat || !(epsMax > 0) ? [Math.max(epsMax, FLAT_SHOW_REL * minRadius)] : Array.from({ length: steps }, (_, k) => (epsMax * (k + 1)) / steps);
   for (const [k, epsilon] of grid.entries()) {
+    if (epsilon <= points[points.length - 1]!.epsilon) continue;
     const last = k === grid.length - 1;
     const candidates: Candidate[] = [];
     // Warm start as given (start 0) and perturbed (start 1).
     candidates.push(...await solveAt(current.rings, epsilon, 2));
     if (!flat && epsMax > 0) {
+      // Two paths towards the unconstrained optimum: straight from the symmetric optimum, and the
+      // unconstrained optimum itself, which the solver first pulls towards its symmetrised copy until
+      // it is within ε. They run side by side on the worker pool.
       const s = Math.min(1, epsilon / epsMax);
-      candidates.push(...await solveAt(interpolate(symmetricRings, alignedBroken, s), epsilon, 1));
+      const paths = await Promise.all([
+        solveAt(interpolate(symmetricRings, alignedBroken, s), epsilon, 1),
+        solveAt(alignedBroken, epsilon, 1),
+      ]);
+      candidates.push(...paths.flat());
     }
     if (last && !flat && epsilon >= brokenDeparture) {
       // The aligned unconstrained optimum is feasible here as it stands (a rigid motion keeps every distance).
-      candidates.push({ rings: alignedBroken, tube: broken.tube, status: broken.status });
+      candidates.push({ rings: alignedBroken, tube: broken.tube, status: broken.status, departure: brokenDeparture });
     }
     const best = candidates.reduce<Candidate | null>((b, c) => (b === null || c.tube > b.tube ? c : b), null);
     let status: SolveStatus;
+    let at = epsilon;
     if (best && best.tube >= current.tube) {
       current = { rings: best.rings, tube: best.tube };
       status = best.status;
+      // The solver meets the bound to its own tolerance: plot the point at the departure it really has.
+      at = Math.max(epsilon, best.departure);
     } else {
       // The previous configuration is feasible at this larger ε: keep it rather than report a dip.
       status = 'stalled';
       messages.push(`sweep: at ε = ${fmt(epsilon)} no start improved on the previous point; its configuration is kept (a lower bound)`);
     }
-    points.push({ epsilon, tube: current.tube, status });
-    configurations.push({ epsilon, tube: current.tube, rings: current.rings });
-    options.onProgress?.({ done: k + 1, total: grid.length, epsilon, tube: current.tube, status });
+    points.push({ epsilon: at, tube: current.tube, status });
+    configurations.push({ epsilon: at, tube: current.tube, rings: current.rings });
+    options.onProgress?.({ done: k + 1, total: grid.length, epsilon: at, tube: current.tube, status });
     if (!flat && saturatedAt(current.tube)) break;
   }
 
@@ -151,7 +165,7 @@ export async function symmetryBreakingSweep(
   }
   return { points, configurations, startCheck, endCheck, brokenDeparture, saturated, messages };
 
-  // Warm-started solves with the departure bound; only verified outcomes within ε come back.
+  // Warm-started solves with the departure bound; only verified outcomes (nearly) within ε come back.
   async function solveAt(rings: Ring[], epsilon: number, starts: number): Promise<Candidate[]> {
     const problem: InflateProblem = {
       rings, tubeRatios: ratios, linking: base.linking, symmetry: null, departure: { symmetry, epsilon },
@@ -166,10 +180,10 @@ export async function symmetryBreakingSweep(
     // Measured with the ring matching the solver used (nearest images of its start).
     const d = departureOrNull(out, symmetry, rings) ?? symmetryDeparture(out, symmetry, orbits);
     if (d > epsilon * (1 + DEPARTURE_SLACK_REL) + DEPARTURE_SLACK_ABS_REL * minRadius) {
-      messages.push(`sweep: at ε = ${fmt(epsilon)} the solver returned departure ${fmt(d)} (layout units); that point was not used`);
+      messages.push(`sweep: at ε = ${fmt(epsilon)} the solver returned departure ${fmt(d)} (layout units); that start was not used`);
       return [];
     }
-    return [{ rings: out, tube: r.tube, status: r.status }];
+    return [{ rings: out, tube: r.tube, status: r.status, departure: d }];
   }
 }
 
@@ -177,6 +191,8 @@ interface Candidate {
   rings: Ring[];
   tube: number;
   status: SolveStatus;
+  /** Measured departure from the symmetry (layout units). */
+  departure: number;
 }
 
 /** Departure of `rings` with the ring matching found on `reference`; null when that has no consistent matching. */

@@ -41,6 +41,8 @@ const NEAR_CONTINUUM_REL = 1e-6;
 /** Below this, Newton on g is not precise enough for the root: polish on the exact h instead. */
 const WELL_CONDITIONED_REL = 1e-4;
 const NEAR_CONTINUUM_SAMPLES = 720;
+/** Rounding level of h (units of length^3, times L^3). */
+const H_NOISE = 64 * 2.220446049250313e-16;
 const MAX_INTERVAL_VISITS = 3000;
 const TWO_PI = 2 * Math.PI;
 
@@ -235,7 +237,7 @@ export function circleContacts(
   const relative = gNorm / gScale;
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
   lastCertified = true;
-  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L3, (2 * EPS) / relative, relative < WELL_CONDITIONED_REL, out);
+  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L3, (2 * EPS) / relative, H_NOISE * L * L * L, relative < WELL_CONDITIONED_REL, out);
   if (count < 0) {
     lastCertified = false;
     count = sampleMinima(out);
@@ -253,8 +255,26 @@ export function circleContacts(
  * within one grid step of a maximum away from the axis, where f is nearly constant.
  */
 function sampleMinima(out: Float64Array): number {
+  const nS = buildSamples(NEAR_CONTINUUM_SAMPLES);
+  let count = 0;
+  const h0 = hAt(SAMPLE_S[0]!);
+  let hPrev = h0;
+  for (let i = 1; i <= nS && count < MAX_CONTACTS; i++) {
+    const sPrev = SAMPLE_S[i - 1]!;
+    const sv = i === nS ? SAMPLE_S[0]! + TWO_PI : SAMPLE_S[i]!;
+    const h = i === nS ? h0 : hAt(sv);
+    if (hPrev < 0 && h >= 0) writeContact(out, count++, wrapAngle(refineH(sPrev, sv, hPrev, h)));
+    hPrev = h;
+  }
+  return count;
+}
+
+/**
+ * Sorted sample angles in SAMPLE_S: n uniform ones plus a geometric grid (steps rho_min/RA * 2^k) around A's
+ * closest approach to B's axis, where f has a cusp-like feature of width ~ rho_min. Returns the count.
+ */
+function buildSamples(n: number): number {
   const rA = GEO[Geo.rA]!;
-  const n = NEAR_CONTINUUM_SAMPLES;
   const step = TWO_PI / n;
   let nS = 0;
   let bestRho = Infinity, bestI = 0;
@@ -264,7 +284,6 @@ function sampleMinima(out: Float64Array): number {
     const r2 = rho2At(sv);
     if (r2 < bestRho) { bestRho = r2; bestI = i; }
   }
-  // Closest approach to B's axis: golden section on rho^2 around the best sample, then a geometric grid.
   let lo = (bestI - 1) * step, hi = (bestI + 1) * step;
   for (let it = 0; it < 80; it++) {
     const x1 = hi - 0.6180339887498949 * (hi - lo), x2 = lo + 0.6180339887498949 * (hi - lo);
@@ -280,17 +299,7 @@ function sampleMinima(out: Float64Array): number {
   SAMPLE_S[nS++] = sc;
   for (let i = 0; i < nS; i++) SAMPLE_S[i] = wrapAngle(SAMPLE_S[i]!);
   SAMPLE_S.subarray(0, nS).sort();
-  let count = 0;
-  const h0 = hAt(SAMPLE_S[0]!);
-  let hPrev = h0;
-  for (let i = 1; i <= nS && count < MAX_CONTACTS; i++) {
-    const sPrev = SAMPLE_S[i - 1]!;
-    const sv = i === nS ? SAMPLE_S[0]! + TWO_PI : SAMPLE_S[i]!;
-    const h = i === nS ? h0 : hAt(sv);
-    if (hPrev < 0 && h >= 0) writeContact(out, count++, wrapAngle(refineH(sPrev, sv, hPrev, h)));
-    hPrev = h;
-  }
-  return count;
+  return nS;
 }
 
 /** rho(s)^2: squared distance of A(s) from B's axis. */
@@ -369,7 +378,7 @@ export function pointCircleDistance(p: ArrayLike<number>, c: ArrayLike<number>, 
  * than SWITCH_WIDTH would differ in depth by ~SWITCH_WIDTH^3 (relative) and are reported once.
  * Child midpoints are rotations of the parent's (cos, sin) from per-level tables: no trig calls.
  */
-function isolateMinima(L3: number, noise: number, polishOnH: boolean, out: Float64Array): number {
+function isolateMinima(L3: number, noise: number, hNoise: number, polishOnH: boolean, out: Float64Array): number {
   let count = 0;
   let top = 0;
   for (let i = INITIAL_INTERVALS - 1; i >= 0; i--) {
@@ -396,8 +405,14 @@ function isolateMinima(L3: number, noise: number, polishOnH: boolean, out: Float
       const cr = FULL_C[level]!, sr = FULL_S[level]!;
       const hLo = hAtCS(cm * cr + sm * sr, sm * cr - cm * sr);
       const hHi = hAtCS(cm * cr - sm * sr, sm * cr + cm * sr);
-      if (hLo < 0 && hHi >= 0 && count < MAX_CONTACTS) {
-        const root = unique && clear && glo * ghi < 0 && !polishOnH ? refine(m - r, m + r, glo, ghi) : refineH(m - r, m + r, hLo, hHi);
+      // Signs with a dead zone: a root on a shared end must be seen as zero from both sides (the two ends
+      // are computed by different rotations), so exactly one of the two intervals claims it.
+      const sLo = hLo < -hNoise ? -1 : hLo > hNoise ? 1 : 0;
+      const sHi = hHi < -hNoise ? -1 : hHi > hNoise ? 1 : 0;
+      if (sLo < 0 && sHi >= 0 && count < MAX_CONTACTS) {
+        const root = sHi === 0 ? m + r
+          : unique && clear && glo * ghi < 0 && !polishOnH ? refine(m - r, m + r, glo, ghi)
+          : refineH(m - r, m + r, hLo, hHi);
         writeContact(out, count++, wrapAngle(root));
       }
       continue;
@@ -519,11 +534,12 @@ function fAt(s: number): number {
   return z * z + (rho - rB) * (rho - rB);
 }
 
-/** f is constant along A (a circle on a tube around B): compare f at spread samples. */
+/** f is constant along A (a circle on a tube around B): compare f at spread samples and around the axis cusp. */
 function isConstantF(L: number): boolean {
+  const nS = buildSamples(32);
   let lo = Infinity, hi = -Infinity;
-  for (let k = 0; k < 16; k++) {
-    const d = Math.sqrt(fAt((k * TWO_PI) / 16 + 0.1));
+  for (let k = 0; k < nS; k++) {
+    const d = Math.sqrt(fAt(SAMPLE_S[k]!));
     if (d < lo) lo = d;
     if (d > hi) hi = d;
   }

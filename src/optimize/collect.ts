@@ -7,6 +7,8 @@ import type { PairScan } from './scan.js';
 
 /** Points per ring sampled for near-continuum contacts. */
 export const SAMPLES_PER_RING = 16;
+/** Samples with slack above this fraction of the pair's touching distance are left out. */
+const SAMPLE_SLACK_REL = 0.02;
 
 export interface CollectOptions {
   t: number;
@@ -29,12 +31,14 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
       if (Number.isFinite(evaluate(con, chart, posed, true, opt.dep))) out.push(con);
     }
     if (!opt.samples) continue;
+    // Only near-touching arcs: samples beside an isolated strut repeat it and only enlarge the model.
+    const sampleMargin = Math.min(opt.margin, SAMPLE_SLACK_REL * opt.t * scan.c);
     for (const [a, b] of [[scan.a, scan.b], [scan.b, scan.a]] as const) {
       for (let k = 0; k < SAMPLES_PER_RING; k++) {
         const th = (2 * Math.PI * (k + 0.5)) / SAMPLES_PER_RING;
         const con = newConstraint('sample', a, b, 0, th, scan.c, nFree, true);
         const g = evaluate(con, chart, posed, true, opt.dep);
-        if (Number.isFinite(g) && g - opt.t * scan.c <= opt.margin) out.push(con);
+        if (Number.isFinite(g) && g - opt.t * scan.c <= sampleMargin) out.push(con);
       }
     }
   }

@@ -31,10 +31,11 @@ export interface StepResult {
 /** Relative feasibility slack accepted in the QP solution before the HiGHS fallback is tried. */
 const QP_FEAS_REL = 1e-9;
 const NLOPT_ALGORITHM: Record<InnerAlgorithm, string> = { slsqp: 'LD_SLSQP', mma: 'LD_MMA', ccsaq: 'LD_CCSAQ' };
-// Observed with nlopt-js 0.1.1: a constraint tolerance > 0 made SLSQP return the start point on tiny steps,
-// and xtol_rel = 0 aborted the process; these values avoid both.
+// Observed with nlopt-js 0.1.1: SLSQP returns its best *feasible* iterate, so a constraint tolerance far
+// below the rounding of the constraint values (0, or an absolute 1e-14) made it hand back the start point;
+// xtol_rel = 0 aborted the process. The tolerance is therefore relative to the size of the step box.
 const NLOPT_XTOL = 1e-9;
-const NLOPT_CTOL = 0;
+const NLOPT_CTOL_REL = 1e-11;
 const NLOPT_MAXEVAL: Record<InnerAlgorithm, number> = { slsqp: 200, mma: 400, ccsaq: 200 };
 const NLOPT_MAXTIME = 2;
 
@@ -55,7 +56,7 @@ export async function localStep(
   cons: readonly Constraint[], nFree: number, t: number, delta: number, box: number, tMax: number, algorithm: InnerAlgorithm,
 ): Promise<StepResult> {
   const first = nloptStep(cons, nFree, t, delta, box, tMax, algorithm);
-  if (process.env.THICKRING_DEBUG) {
+  if (process.env.THICKRING_DEBUG_QP) {
     const h = await highsStep(cons, nFree, t, delta, box, tMax);
     console.error('  qp nlopt', first.ok, first.tau, 'highs', h.ok, h.tau, 'feas', feasible(first, cons, t, box));
     if (first.tau === 0 && h.tau > 0) (await import('node:fs')).writeFileSync('.thickring-tmp-opt/qp.json', JSON.stringify({ cons: cons.map((k) => ({ g: k.g, c: k.c, grad: Array.from(k.grad) })), nFree, t, delta, box, tMax }));
@@ -82,6 +83,7 @@ function nloptStep(
     if (grad) grad[nFree] = grad[nFree]! - s;
     return f;
   }, NLOPT_XTOL);
+  const ctol = NLOPT_CTOL_REL * (box / s);
   for (const con of cons) {
     // Rounding can leave a slack of -1e-16; the start point must stay feasible.
     const h = Math.max(0, con.g - con.c * t) / s;
@@ -94,7 +96,7 @@ function nloptStep(
         grad[nFree] = c;
       }
       return v;
-    }, NLOPT_CTOL);
+    }, ctol);
   }
   const lower = new Array<number>(n).fill(-box / s), upper = new Array<number>(n).fill(box / s);
   // τ: no useful lower limit (a step may have to give up some t), capped by t·w_i <= R_i.

@@ -44,14 +44,17 @@ export async function runPool(tasks: PoolTask[], options: PoolOptions): Promise<
   let next = 0;
   const lanes: Promise<void>[] = [];
   const live = new Set<SolveThread>();
+  // Once the pool is closed (all done, or a callback threw) no lane may start another worker.
+  let closed = false;
   try {
     for (let w = 0; w < count; w++) {
       lanes.push((async () => {
         let thread: SolveThread | null = null;
-        while (next < tasks.length) {
+        while (next < tasks.length && !closed) {
           const index = next++;
           const task = tasks[index]!;
           const r = await runTask(task, () => {
+            if (closed) throw new Error('the worker pool was closed');
             if (thread === null || thread.dead) {
               if (thread) live.delete(thread);
               thread = startThread();
@@ -66,6 +69,7 @@ export async function runPool(tasks: PoolTask[], options: PoolOptions): Promise<
     }
     await Promise.all(lanes);
   } finally {
+    closed = true;
     await Promise.all([...live].map((t) => t.stop()));
   }
   return results;

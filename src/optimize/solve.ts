@@ -263,7 +263,8 @@ function assess(state: LoopState, ctx: Context, polished: Polished | null): Fina
       out ??= { rings: state.rings, t, cert: first, escape: null, polishMessage: polished?.message ?? null };
       continue;
     }
-    const curv = criticalCurvature(chart, active, first.lambda, ctx.scale, ctx.dep);
+    // Samples bound a contact arc from above, so curvature computed with them can be spurious: skip it there.
+    const curv = active.some((k) => k.kind === 'sample') ? null : criticalCurvature(chart, active, first.lambda, ctx.scale, ctx.dep);
     const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null });
     const escape = !cert.certificate.certified && curv !== null ? curv.direction : null;
     out = { rings: state.rings, t, cert, escape, polishMessage: polished?.message ?? null };
