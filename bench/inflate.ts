@@ -3,6 +3,7 @@
 // worker as the baseline measured in the same run. Seeded; warm-up; median of repeats.
 // Targets: a single solve under 1 s, 16 starts under 10 s.
 // Run: npm run build && node dist/bench/inflate.js [--repeats N] [--json]
+import { availableParallelism, loadavg } from 'node:os';
 import { packingBound } from '../src/optimize/bound.js';
 import { verifyOutcome, runMultistart } from '../src/optimize/multistart.js';
 import { solveInflate } from '../src/optimize/solve.js';
@@ -24,6 +25,12 @@ const REPEATS = repeatsArg >= 0 ? Math.max(1, Number(args[repeatsArg + 1])) : 5;
 const MULTI_REPEATS = Math.max(1, Math.min(REPEATS, 3));
 const json = args.includes('--json');
 
+/** CPU seconds (user + system, every thread of this process) since `c0`. */
+function cpuSince(c0: NodeJS.CpuUsage): number {
+  const d = process.cpuUsage(c0);
+  return (d.user + d.system) / 1e6;
+}
+
 const median = (xs: number[]): number => {
   const s = [...xs].sort((a, b) => a - b);
   return s[Math.floor(s.length / 2)]!;
@@ -34,6 +41,8 @@ interface Row {
   runs: string;
   medianSeconds: number;
   minSeconds: number;
+  /** Median CPU seconds of the whole process (all threads) per run: the cost without other load. */
+  cpuSeconds: number;
   status: string;
   tube: number;
   /** (reference - tube) / reference against the known optimum, else the packing bound. */
@@ -66,12 +75,15 @@ async function singleSolve(spec: string, symmetry: string): Promise<Row> {
   // Warm-up: JIT, WebAssembly instantiation.
   await solveInflate(problem, options);
   const times: number[] = [];
+  const cpu: number[] = [];
   let last: SolveOutcome | null = null;
   for (let k = 0; k < REPEATS; k++) {
     // Seeded starts differ per repeat (seed + k) but are the same in every run of the benchmark.
+    const c0 = process.cpuUsage();
     const t0 = performance.now();
     last = await solveInflate(problem, { ...options, seed: SEED + k });
     times.push((performance.now() - t0) / 1000);
+    cpu.push(cpuSince(c0));
   }
   const o = last!;
   const ref = reference(spec, packingBound(problem.rings, problem.tubeRatios, problem.linking)?.tube ?? null);
@@ -81,6 +93,7 @@ async function singleSolve(spec: string, symmetry: string): Promise<Row> {
     runs: `${REPEATS}`,
     medianSeconds: med,
     minSeconds: Math.min(...times),
+    cpuSeconds: median(cpu),
     status: o.status,
     tube: o.tube,
     gap: (ref.value - o.tube) / ref.value,
@@ -94,13 +107,16 @@ async function singleSolve(spec: string, symmetry: string): Promise<Row> {
 async function multistart(spec: string, symmetry: string, workers: number, starts: number): Promise<Row> {
   const problem = problemOf(spec, symmetry);
   const times: number[] = [];
+  const cpu: number[] = [];
   let tube = NaN, status = '', verified = false, iterations = 0, bound = NaN;
   for (let k = 0; k < MULTI_REPEATS; k++) {
+    const c0 = process.cpuUsage();
     const t0 = performance.now();
     const r = await runMultistart(problem, {
       starts, workers, seed: SEED, tol: TOL, maxIterations: MAX_ITERATIONS, spec, command: 'bench', units: null,
     });
     times.push((performance.now() - t0) / 1000);
+    cpu.push(cpuSince(c0));
     tube = r.tube;
     status = r.status;
     verified = r.verification.ok;
@@ -114,6 +130,7 @@ async function multistart(spec: string, symmetry: string, workers: number, start
     runs: `${MULTI_REPEATS}`,
     medianSeconds: med,
     minSeconds: Math.min(...times),
+    cpuSeconds: median(cpu),
     status,
     tube,
     gap: (ref.value - tube) / ref.value,
@@ -139,9 +156,9 @@ if (!json) console.error(`done: ${rows.at(-1)!.case}`);
 if (json) {
   console.log(JSON.stringify({ seed: SEED, tol: TOL, maxIterations: MAX_ITERATIONS, rows }));
 } else {
-  const head = ['case', 'runs', 'median (s)', 'min (s)', 'status', 'tube (R = 1)', 'gap to reference (dimensionless)', 'reference', 'iterations', 'verified', 'target'];
+  const head = ['case', 'runs', 'median (s)', 'min (s)', 'CPU (s)', 'status', 'tube (R = 1)', 'gap to reference (dimensionless)', 'reference', 'iterations', 'verified', 'target'];
   const body = rows.map((r) => [
-    r.case, r.runs, r.medianSeconds.toFixed(3), r.minSeconds.toFixed(3), r.status, r.tube.toPrecision(12),
+    r.case, r.runs, r.medianSeconds.toFixed(3), r.minSeconds.toFixed(3), r.cpuSeconds.toFixed(3), r.status, r.tube.toPrecision(12),
     r.gap.toExponential(2), r.reference, String(r.iterations), r.verified ? 'yes' : 'NO', r.target,
   ]);
   const w = head.map((h, k) => Math.max(h.length, ...body.map((b) => b[k]!.length)));
@@ -151,4 +168,6 @@ if (json) {
   for (const b of body) console.log(line(b));
   const two = rows.at(-2)!, one = rows.at(-1)!;
   console.log(`speed-up of 2 workers over 1 on ${MULTI_STARTS} starts: ${(one.medianSeconds / two.medianSeconds).toFixed(2)}x (dimensionless)`);
+  // Wall times mean little when other jobs share the cores: say how loaded the machine was.
+  console.log(`load average (1, 5, 15 min): ${loadavg().map((x) => x.toFixed(2)).join(', ')} on ${availableParallelism()} cores`);
 }

@@ -1,5 +1,6 @@
 // The standalone HTML report: one file, plotting library inlined, no network access, every text
 // escaped. Built from a result file (inflate or compare) and, when available, a play analysis.
+import { CAUTIONS } from '../src/fabricate/cautions.js';
 import type { CompareResult, SolveResult } from '../src/model/result.js';
 import { escapeHtml as h, jsonForScript, scriptSource } from './escape.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, vec } from './format.js';
@@ -109,7 +110,12 @@ export function buildReportHtml(result: SolveResult | CompareResult, options: Re
     lead: `Pose of every ring at the optimum (${h(unit)}); aspect ratio = inner diameter / wire diameter (dimensionless).`,
     body: ringsTable(result) + contactsTable(result),
   });
-  sections.push({ title: 'What was checked', lead: '', body: checksBlock(compare ? [['symmetric', compare.symmetric], ['broken', compare.broken]] : [['', result]]) });
+  sections.push({
+    title: 'What was checked',
+    lead: '',
+    body: checksBlock(compare ? [['symmetric', compare.symmetric], ['broken', compare.broken]] : [['', result]]) +
+      (compare ? comparisonChecks(compare) : ''),
+  });
   sections.push({ title: 'Before you make it', lead: '', body: cautions() });
 
   const html = page(result, compare, sections, plots, options);
@@ -189,13 +195,13 @@ function cards(result: SolveResult, compare: CompareResult | null): string {
     `<div class="card"><div class="label">${h(label)}</div><div class="value">${h(value)}</div><div class="unit">${h(u)}</div></div>`;
   const list = [
     card('tube radius', num(result.tube), unit),
-    card('tube / core radius', num(result.tubeOverCore, 4), DIMENSIONLESS),
-    card('aspect ratio', num(result.aspectRatio, 4), 'inner diam. / wire diam., dimensionless'),
+    card('tube / core', num(result.tubeOverCore, 4), DIMENSIONLESS),
+    card('aspect ratio', num(result.aspectRatio, 4), 'inner / wire diameter, dimensionless'),
   ];
   if (compare) {
-    list.push(card('gain from breaking symmetry', num(compare.gain, 4), `${unit} (${num(compare.gainPercent, 3)} %)`));
+    list.push(card('symmetry gain', num(compare.gain, 4), `${unit} (${num(compare.gainPercent, 3)} %)`));
   }
-  list.push(card('gap to packing bound', result.bound ? percent(result.bound.gap) : 'n/a',
+  list.push(card('gap to bound', result.bound ? percent(result.bound.gap) : 'n/a',
     result.bound ? `bound ${num(result.bound.tube)} ${unit}` : 'no bound for this layout'));
   list.push(card('status', result.status, result.certificate.certified ? 'certified optimum' : 'not certified'));
   return `<div class="cards">${list.join('')}</div>`;
@@ -218,7 +224,7 @@ function cell(label: string, value: string): string {
 
 function figuresTable(cols: [string, SolveResult][]): string {
   const rows = cols.map(([, r]) => figureRows(r));
-  const head = `<thead><tr><th>quantity</th>${cols.map(([l]) => `<th>${h(l || 'value')}</th>`).join('')}<th>unit</th></tr></thead>`;
+  const head = `<thead><tr><th>quantity</th>${cols.map(([l]) => `<th class="n">${h(l || 'value')}</th>`).join('')}<th>unit</th></tr></thead>`;
   const body = rows[0]!.map(([label, , u], i) =>
     `<tr><th scope="row">${h(label)}</th>${rows.map((r) => `<td class="n">${cell(label, r[i]![1])}</td>`).join('')}` +
     `<td class="u">${h(u || rows.map((r) => r[i]![2]).find(Boolean) || '')}</td></tr>`).join('');
@@ -227,7 +233,9 @@ function figuresTable(cols: [string, SolveResult][]): string {
 
 function compareFigures(c: CompareResult): string {
   const unit = lengthUnit(c);
-  const gainRow = `<tr><th scope="row">gain (broken \u2212 symmetric)</th><td class="n"></td><td class="n">${h(gainText(c))}</td><td class="u">${h(unit)}</td></tr>`;
+  const pct = Number.isFinite(c.gainPercent) ? ` (${c.gainPercent >= 0 ? '+' : ''}${num(c.gainPercent, 3)} %)` : '';
+  const gain = Number.isFinite(c.gain) ? `${c.gain > 0 ? '+' : ''}${num(c.gain, 4)}${pct}` : 'n/a';
+  const gainRow = `<tr><th scope="row">gain (broken \u2212 symmetric)</th><td class="n"></td><td class="n">${h(gain)}</td><td class="u">${h(unit)}</td></tr>`;
   return figuresTable([['symmetric', c.symmetric], ['broken', c.broken]]).replace('</tbody>', `${gainRow}</tbody>`);
 }
 
@@ -289,14 +297,18 @@ function checksBlock(cols: [string, SolveResult][]): string {
   }).join('');
 }
 
+// Messages of the comparison itself (the sweep's re-checks), i.e. those not already under "broken".
+function comparisonChecks(c: CompareResult): string {
+  const own = c.verification.messages.filter((m) => !c.broken.verification.messages.includes(m));
+  if (own.length === 0) return '';
+  return `<p class="plot-title">comparison</p><ul class="cautions">${own.map((m) => `<li>${h(m)}</li>`).join('')}</ul>`;
+}
+
 function cautions(): string {
   const items = [
-    'These are geometric figures for perfectly round, rigid rings at exact poses. Wire springs back, prints shrink ' +
-      'and sag, and plating adds thickness: leave clearance (thickring fabricate adds it per process).',
-    'Small rings and loose links are a choking hazard: keep them away from young children.',
-    'Nothing here rates a ring or chain for load. Do not use it for lifting, climbing, restraint or anything ' +
-      'whose failure can hurt someone without testing and rating it properly.',
-    'For jewellery and skin contact choose skin-safe, nickel-free materials; cure and wash resin prints fully.',
+    'These are geometric figures for perfectly round, rigid rings at exact poses, touching with zero clearance. ' +
+      'Wire springs back, prints shrink and sag, and plating adds thickness: leave clearance (thickring fabricate adds it per process).',
+    ...CAUTIONS,
   ];
   return `<ul class="cautions">${items.map((t) => `<li>${h(t)}</li>`).join('')}</ul>`;
 }

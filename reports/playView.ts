@@ -24,23 +24,21 @@ export function playView(p: PlayReport): PlayView {
     { label: 'second-order test', value: p.secondOrder.outcome, unit: '' },
   ];
   if (p.secondOrder.thickenedTube !== null) {
-    rows.push({ label: 'tube reached by following the escape', value: num(p.secondOrder.thickenedTube), unit });
+    rows.push({ label: 'tube reached by following the escape', value: num(p.secondOrder.thickenedTube, 8), unit });
   }
+  // Each ring alone, the others held still: the tightest and the loosest direction, so a reader sees both
+  // "it cannot slide towards C at all" and "it can still slide 0.12 mm along z".
   for (const ring of p.play.rings) {
-    const moves = ring.entries.filter((e) => e.kind === 'translate');
-    const turns = ring.entries.filter((e) => e.kind === 'rotate');
-    const least = <T extends { amount: number }>(xs: T[]): T | undefined => xs.reduce<T | undefined>((m, e) => (m === undefined || e.amount < m.amount ? e : m), undefined);
-    const m = least(moves), t = least(turns);
-    if (m) {
+    for (const [kind, what, u] of [['translate', 'slide', unit], ['rotate', 'tilt', 'degrees']] as const) {
+      const es = ring.entries.filter((e) => e.kind === kind);
+      if (es.length === 0) continue;
+      const lo = es.reduce((m, e) => (e.amount < m.amount ? e : m));
+      const hi = es.reduce((m, e) => (e.amount > m.amount ? e : m));
+      const amount = (e: typeof lo): string => `${e.capped ? '> ' : ''}${num(e.amount, 4)}`;
       rows.push({
-        label: `ring ${ring.name}: least sliding play (${m.direction}${m.touches ? `, meets ${m.touches}` : ''})`,
-        value: `${m.capped ? '> ' : ''}${num(m.amount, 4)}`, unit,
-      });
-    }
-    if (t) {
-      rows.push({
-        label: `ring ${ring.name}: least tilting play (${t.direction}${t.touches ? `, meets ${t.touches}` : ''})`,
-        value: `${t.capped ? '> ' : ''}${num(t.amount, 4)}`, unit: 'degrees',
+        label: `ring ${ring.name}: ${what} (least ${lo.direction}${lo.touches ? ` until it meets ${lo.touches}` : ''}; most ${hi.direction})`,
+        value: `${amount(lo)} … ${amount(hi)}`,
+        unit: u,
       });
     }
   }

@@ -107,17 +107,24 @@ function addStruts(result: SolveResult, unit: string, data: Record<string, unkno
   const fmax = Math.max(...contacts.map((c) => (Number.isFinite(c.force) ? c.force : 0)), 0);
   const px: number[] = [], py: number[] = [], pz: number[] = [], size: number[] = [], colour: number[] = [];
   const text: string[] = [];
-  contacts.forEach((c, s) => {
+  // Strongest first, so each legend entry shows the style of a loaded strut.
+  const ordered = [...contacts].sort((p, q) => (Number.isFinite(q.force) ? q.force : 0) - (Number.isFinite(p.force) ? p.force : 0));
+  let shownLoaded = false, shownIdle = false;
+  ordered.forEach((c) => {
     const ra = result.rings[c.a], rb = result.rings[c.b];
     if (!ra || !rb) return;
     const f = Number.isFinite(c.force) ? c.force : 0;
     const rel = fmax > 0 ? f / fmax : 0;
     const names = `${plotlyText(ra.name)}–${plotlyText(rb.name)}`;
+    const loaded = rel > 0;
+    const first = loaded ? !shownLoaded : !shownIdle;
+    if (loaded) shownLoaded = true; else shownIdle = true;
     data.push({
       type: 'scatter3d', mode: 'lines',
       x: [c.onA[0], c.onB[0]], y: [c.onA[1], c.onB[1]], z: [c.onA[2], c.onB[2]],
-      line: { color: rel > 0 ? ACCENT : MUTED, width: 2 + 9 * rel, dash: rel > 0 ? 'solid' : 'dash' },
-      name: 'struts (width ∝ force)', legendgroup: 'struts', showlegend: s === 0,
+      line: { color: loaded ? ACCENT : MUTED, width: 2 + 9 * rel, dash: loaded ? 'solid' : 'dash' },
+      name: loaded ? 'struts (width ∝ force)' : 'touching, no force',
+      legendgroup: loaded ? 'struts' : 'idle', showlegend: first,
       hovertemplate: `strut ${names}<br>force ${num(f, 4)} (dimensionless)<extra></extra>`,
     });
     // The touching point divides the strut in the ratio of the two tube radii.

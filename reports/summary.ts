@@ -47,7 +47,8 @@ function compareSummary(c: CompareResult): string {
     `thickring compare ${c.spec}: symmetric (${symmetryLabel(c.symmetric.symmetry)}) vs symmetry broken, ${c.rings.length} rings`,
     table(rows),
     '',
-    `gain from breaking the symmetry: ${signed(c.gain, unit)} (${c.gainPercent >= 0 ? '+' : ''}${num(c.gainPercent, 3)} %)`,
+    `gain from breaking the symmetry: ${signed(c.gain, unit)}` +
+      (Number.isFinite(c.gainPercent) ? ` (${c.gainPercent >= 0 ? '+' : ''}${num(c.gainPercent, 3)} %)` : ''),
   ];
   if (c.changes.length > 0) {
     lines.push('', 'per-ring change, broken vs symmetric optimum (after best rigid alignment):');

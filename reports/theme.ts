@@ -74,7 +74,7 @@ header.masthead .sub { margin: 6px 0 0; color: #c9cdd1; font-size: 14px; }
 main { max-width: 1180px; margin: 0 auto; padding: 24px 40px 48px; }
 .cards { display: grid; grid-template-columns: repeat(auto-fit, minmax(170px, 1fr)); gap: 12px; margin: 0 0 24px; }
 .card { background: ${CARD}; border: 1px solid ${RULE}; border-radius: 6px; padding: 12px 14px; }
-.card .label { font-size: 12px; color: ${MUTED}; text-transform: uppercase; letter-spacing: .08em; }
+.card .label { font-size: 12px; color: ${MUTED}; text-transform: uppercase; letter-spacing: .08em; white-space: nowrap; overflow: hidden; text-overflow: ellipsis; }
 .card .value { font-size: 22px; font-weight: 650; font-variant-numeric: tabular-nums; margin-top: 2px; }
 .card .unit { font-size: 12px; color: ${MUTED}; }
 section.block { background: ${CARD}; border: 1px solid ${RULE}; border-radius: 6px; margin: 0 0 22px; padding: 18px 22px 16px; }
@@ -89,6 +89,7 @@ section.block > p.lead { margin: 0 0 12px; color: ${MUTED}; font-size: 14px; max
 table.figures { border-collapse: collapse; width: 100%; font-variant-numeric: tabular-nums; font-size: 14px; }
 table.figures th, table.figures td { text-align: left; padding: 6px 10px; border-bottom: 1px solid #ece6d9; vertical-align: top; }
 table.figures thead th { font-size: 12px; text-transform: uppercase; letter-spacing: .07em; color: ${MUTED}; border-bottom: 2px solid ${RULE}; }
+table.figures th.n { text-align: right; }
 table.figures td.n { text-align: right; font-family: ${MONO_STACK}; font-size: 13px; white-space: nowrap; }
 table.figures td.u { color: ${MUTED}; font-size: 13px; }
 table.figures tr:hover td { background: #faf5ea; }

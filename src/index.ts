@@ -11,3 +11,13 @@ export {
 export { linkingNumber, linkingMatrix, connectedness } from './topology/index.js';
 export { measureLayout } from './analyze/measure.js';
 export * as fabricate from './fabricate/index.js';
+export { catalogLayout, catalogEntries, naturalSymmetry } from './model/catalog.js';
+export { resolveSpec } from './model/spec.js';
+export { parseSymmetryOption, symmetrize, symmetryDeparture } from './model/symmetry.js';
+export { solveInflate } from './optimize/solve.js';
+export { runMultistart } from './optimize/multistart.js';
+export { packingBound, packingRadius } from './optimize/bound.js';
+export { verifyConfiguration } from './analyze/verify.js';
+export { compare } from './analyze/compare.js';
+export { symmetryBreakingSweep } from './analyze/sweep.js';
+export { analyzePlay, type PlayReport } from './analyze/play.js';

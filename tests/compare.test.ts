@@ -1,5 +1,8 @@
 // thickring compare: rigid alignment of two optima, the choice of symmetry, and (with the optimizer)
 // symmetric vs symmetry-broken optima of torus:3 and of the Hopf link, with the symmetry-breaking curve.
+import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { main } from '../cli/main.js';
 import type { Io } from '../cli/io.js';
@@ -156,5 +159,29 @@ describe('symmetric vs broken optimum (runs the optimizer)', () => {
     expect(c.broken.tube).toBeCloseTo(0.5, 7);
     expect(Math.abs(c.gain)).toBeLessThanOrEqual(1e-6 * c.symmetric.tube);
     for (const p of c.sweep) expect(p.tube).toBeCloseTo(0.5, 7);
+  }, 300_000);
+});
+
+describe('thickring compare on the command line, then report (runs the optimizer)', () => {
+  it('prints exactly one JSON object, writes the same result file, and the report reads it', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'thickring-compare-'));
+    try {
+      const out: string[] = [], err: string[] = [];
+      const io: Io = { out: (t) => out.push(t), err: (t) => err.push(t), interactive: false };
+      const file = join(dir, 'hopf.json');
+      const code = await main(['compare', 'hopf', '--starts', '1', '--workers', '1', '--sweep-points', '1', '--json', '-o', file], io);
+      expect(code, err.join('\n')).toBe(0);
+      expect(out).toHaveLength(1);
+      const printed = JSON.parse(out[0]!);
+      expect(printed).toMatchObject({ format: 'thickring-result/1', command: 'compare', spec: 'hopf' });
+      expect(JSON.parse(readFileSync(file, 'utf8'))).toEqual(printed);
+      // Progress went to stderr, one line per finished solve.
+      expect(err.join('\n')).toMatch(/compare: symmetric optimum 1\/1/);
+      const html = join(dir, 'hopf.html');
+      expect(await main(['report', file, '-o', html, '--no-play'], io)).toBe(0);
+      expect(existsSync(html)).toBe(true);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   }, 300_000);
 });

@@ -89,7 +89,7 @@ export async function compare(resolved: ResolvedSpec, options: CompareOptions): 
   let broken = mergeSearches(searches);
 
   // 3. The curve between them; a sweep that beats the broken search is polished without the bound.
-  const sweepPoints = options.sweepPoints ?? undefined;
+  const sweepPoints = options.sweepPoints;
   let sweep: CompareResult['sweep'] = [];
   const messages: string[] = [];
   if (symmetricOk && usable(broken) && sweepPoints !== 0) {
@@ -110,7 +110,7 @@ export async function compare(resolved: ResolvedSpec, options: CompareOptions): 
       // The bounded sweep beat the searches: polish its end without the bound and use that.
       const polished = await runMultistart({ ...base, rings: end.rings }, { ...common, starts: 1, seed: options.seed + 4 });
       if (usable(polished) && polished.tube > broken.tube) {
-        messages.push(`the sweep led to a thicker unconstrained layout than the searches (${fmt(polished.tube)} vs ${fmt(broken.tube)} layout units); it is used`);
+        messages.push(`the sweep led to a thicker unconstrained layout than the searches (${fmt(polished.tube)} vs ${fmt(broken.tube)} ${units ?? 'layout units'}); it is used`);
         broken = { ...polished, starts: [...broken.starts, ...polished.starts] };
         // Aligned onto the symmetric optimum it is feasible at its own departure, hence at any larger ε.
         const aligned = alignRings(polished.rings, symmetric.rings);
@@ -119,6 +119,11 @@ export async function compare(resolved: ResolvedSpec, options: CompareOptions): 
         if (eps === sweep[sweep.length - 1]!.epsilon) sweep.pop();
         sweep.push({ epsilon: eps, tube: polished.tube, status: polished.status });
         endCheck = verifyConfiguration({ rings: moved, tube: polished.tube, tubeRatios, linking: resolved.linking });
+      } else {
+        messages.push(
+          `the sweep reached ${fmt(end.tube)} ${units ?? 'layout units'} within its bound, above the searches' ${fmt(broken.tube)}, ` +
+            'but polishing it without the bound did not verify; the unconstrained value shown is the searches\' one',
+        );
       }
     }
     messages.push(

@@ -60,7 +60,16 @@ export interface Posed {
   dirs: Float64Array[][];
 }
 
-export function buildChart(rings: readonly Ring[], orbits: RingOrbits, gauge: boolean): Chart {
+/**
+ * The group whose commuting rigid motions are gauge: the imposed symmetry, or, when only the departure
+ * from a symmetry is bounded, that symmetry (a motion that does not commute with it changes the departure).
+ */
+export interface GaugeGroup {
+  elements: Mat3[];
+  origin: Vec3;
+}
+
+export function buildChart(rings: readonly Ring[], orbits: RingOrbits, gauge: GaugeGroup | false): Chart {
   const n = rings.length;
   const e1 = new Float64Array(3 * n), e2 = new Float64Array(3 * n);
   for (let j = 0; j < n; j++) {
@@ -91,7 +100,7 @@ export function buildChart(rings: readonly Ring[], orbits: RingOrbits, gauge: bo
     }
   }
   const nFull = offset;
-  const fixed = gauge ? gaugeFixedVariables(rings, orbits, reps, nFull) : [];
+  const fixed = gauge ? gaugeFixedVariables(rings, gauge, reps, nFull) : [];
   const freeOf = new Int32Array(nFull).fill(-1);
   const freeList: number[] = [];
   for (let k = 0; k < nFull; k++) {
@@ -198,11 +207,11 @@ export function ringsOf(chart: Chart, posed: Posed): Ring[] {
 // --- helpers ---
 
 /** Rigid motions commuting with the group, as variable vectors; fix one variable per independent one. */
-function gaugeFixedVariables(rings: readonly Ring[], orbits: RingOrbits, reps: RepBlock[], nFull: number): number[] {
-  const G = orbits.elements;
+function gaugeFixedVariables(rings: readonly Ring[], group: GaugeGroup, reps: RepBlock[], nFull: number): number[] {
+  const G = group.elements;
   const fixAxes = orthonormalImages(average(G, G.map(() => 1)), [[1, 0, 0], [0, 1, 0], [0, 0, 1]], null);
   // Rotations about the centroid when there is no symmetry (better conditioned); otherwise about the origin.
-  let o: Vec3 = [...orbits.origin];
+  let o: Vec3 = [...group.origin];
   if (G.length === 1 && rings.length > 0) {
     o = [0, 0, 0];
     for (const r of rings) for (let k = 0; k < 3; k++) o[k]! += r.center[k]! / rings.length;

@@ -13,7 +13,11 @@
 // quasi-Newton matrix, so its first QP subproblem is already the exact step and it stops one iteration later
 // (no line-search trouble, which is what makes the WebAssembly build abort). nlopt-js LD_SLSQP is the main
 // solver as the design asks; LD_MMA and LD_CCSAQ are the alternatives the pool retries with. HiGHS
-// (active-set QP) is the companion: used when an nlopt run returns a non-finite or infeasible point.
+// (active-set QP) is the companion: used when an nlopt run fails or returns a non-finite or infeasible point.
+// Observed here: when NLopt fails, the WebAssembly build throws a JS exception ("Exception catching is
+// disabled") out of optimize(); thrown synchronously it can be caught, and the module keeps working, though
+// each one leaks a little WebAssembly stack and heap — so after NLOPT_FAILURE_BUDGET failures in one thread
+// only HiGHS is used. Uncaught, the same exception ends the thread, which is why solves run in workers.
 import nlopt from 'nlopt-js';
 import type { Highs } from 'highs';
 import type { Constraint } from './constraints.js';
@@ -28,18 +32,27 @@ export interface StepResult {
   solver: 'nlopt' | 'highs';
 }
 
-/** Relative feasibility slack accepted in the QP solution before the HiGHS fallback is tried. */
-const QP_FEAS_REL = 1e-9;
+/**
+ * Violation of the linearised constraints (relative to the tube and box) accepted in a QP solution: only a
+ * guard against garbage, since the outer loop judges every step on the exact kernel.
+ */
+const QP_FEAS_REL = 1e-6;
 const NLOPT_ALGORITHM: Record<InnerAlgorithm, string> = { slsqp: 'LD_SLSQP', mma: 'LD_MMA', ccsaq: 'LD_CCSAQ' };
 // Observed with nlopt-js 0.1.1: SLSQP returns its best *feasible* iterate, so a constraint tolerance far
 // below the rounding of the constraint values (0, or an absolute 1e-14) made it hand back the start point;
 // xtol_rel = 0 aborted the process. The tolerance is therefore relative to the size of the step box.
 const NLOPT_XTOL = 1e-9;
 const NLOPT_CTOL_REL = 1e-11;
-const NLOPT_MAXEVAL: Record<InnerAlgorithm, number> = { slsqp: 200, mma: 400, ccsaq: 200 };
-const NLOPT_MAXTIME = 2;
+// MMA and CCSAQ converge slowly on these QPs; an approximate step is enough (the outer loop judges it).
+const NLOPT_MAXEVAL: Record<InnerAlgorithm, number> = { slsqp: 200, mma: 80, ccsaq: 60 };
+const NLOPT_MAXTIME: Record<InnerAlgorithm, number> = { slsqp: 2, mma: 0.25, ccsaq: 0.25 };
+/** Start of the inner solve: τ this fraction of the box below zero (scaled units). */
+const START_BELOW_REL = 1e-3;
 
 let highsPromise: Promise<Highs> | null = null;
+/** NLopt failures caught in this thread (each leaks a little WebAssembly memory). */
+let nloptFailures = 0;
+const NLOPT_FAILURE_BUDGET = 200;
 
 /** The default export is the loader at run time (ESM build); the CommonJS typings hide that. */
 function loadHighs(): Promise<Highs> {
@@ -52,18 +65,35 @@ export async function readySolvers(): Promise<void> {
   await nlopt.ready;
 }
 
+/**
+ * The step of the proximal QP. A predicted gain at or below `confirmBelow` (layout units) is confirmed by
+ * HiGHS before the caller stops on it: an nlopt run that stopped early would otherwise end the solve.
+ */
 export async function localStep(
   cons: readonly Constraint[], nFree: number, t: number, delta: number, box: number, tMax: number, algorithm: InnerAlgorithm,
+  confirmBelow = 0,
 ): Promise<StepResult> {
-  const first = nloptStep(cons, nFree, t, delta, box, tMax, algorithm);
-  if (process.env.THICKRING_DEBUG_QP) {
-    const h = await highsStep(cons, nFree, t, delta, box, tMax);
-    console.error('  qp nlopt', first.ok, first.tau, 'highs', h.ok, h.tau, 'feas', feasible(first, cons, t, box));
-    if (first.tau === 0 && h.tau > 0) (await import('node:fs')).writeFileSync('.thickring-tmp-opt/qp.json', JSON.stringify({ cons: cons.map((k) => ({ g: k.g, c: k.c, grad: Array.from(k.grad) })), nFree, t, delta, box, tMax }));
+  if (process.env.THICKRING_DUMP) (await import('node:fs')).writeFileSync('.thickring-tmp-opt/qp_last.json', JSON.stringify({ cons: cons.map((k) => ({ kind: k.kind, g: k.g, c: k.c, grad: Array.from(k.grad) })), nFree, t, delta, box, tMax }));
+  let first: StepResult | null = null;
+  if (nloptFailures < NLOPT_FAILURE_BUDGET) {
+    try {
+      first = nloptStep(cons, nFree, t, delta, box, tMax, algorithm);
+    } catch {
+      nloptFailures++;
+      nlopt.GC.flush();
+    }
   }
-  if (first.ok && feasible(first, cons, t, box)) return first;
+  if (process.env.THICKRING_DEBUG_QP) {
+    const t0 = performance.now();
+    const h = await highsStep(cons, nFree, t, delta, box, tMax);
+    console.error('  qp nlopt', first?.ok, first?.tau, 'highs', h.ok, h.tau, (performance.now() - t0).toFixed(2), 'ms', cons.length);
+  }
+  const firstOk = first !== null && first.ok && feasible(first, cons, t, box);
+  if (firstOk && first!.tau > confirmBelow) return first!;
   const second = await highsStep(cons, nFree, t, delta, box, tMax);
-  if (second.ok && feasible(second, cons, t, box)) return second;
+  const secondOk = second.ok && feasible(second, cons, t, box);
+  if (firstOk && (!secondOk || first!.tau >= second.tau)) return first!;
+  if (secondOk) return second;
   return { ok: false, z: new Float64Array(nFree), tau: 0, solver: 'nlopt' };
 }
 
@@ -105,8 +135,12 @@ function nloptStep(
   opt.setLowerBounds(lower);
   opt.setUpperBounds(upper);
   opt.setMaxeval(NLOPT_MAXEVAL[algorithm]);
-  opt.setMaxtime(NLOPT_MAXTIME);
-  const res = opt.optimize(new Array<number>(n).fill(0));
+  opt.setMaxtime(NLOPT_MAXTIME[algorithm]);
+  // Start strictly inside, just below the current tube: observed with nlopt-js 0.1.1, SLSQP aborts the
+  // process when its start point already solves the QP (a zero first step), and the solution never has τ < 0.
+  const x0 = new Array<number>(n).fill(0);
+  x0[nFree] = Math.max(lower[nFree]!, -START_BELOW_REL * (box / s));
+  const res = opt.optimize(x0);
   nlopt.GC.flush();
   const z = new Float64Array(nFree);
   let finite = res.success && Array.isArray(res.x) && res.x.length === n;

@@ -178,6 +178,39 @@ export function kktJacobian(chart: Chart, cons: Constraint[], z: Float64Array, l
   return J;
 }
 
+/**
+ * Gauss–Newton back onto the surface g_k(z) = c_k t of the given constraints, from (z0, t0), with
+ * minimum-norm corrections (used to step off a saddle along its ascent direction without falling back).
+ */
+export function restoreContacts(
+  chart: Chart, cons: readonly Constraint[], z0: Float64Array, t0: number, L: number, dep: DepartureSpec | null,
+): { z: Float64Array; t: number } | null {
+  const n = chart.nFree, m = cons.length;
+  const work = cons.map((k) => ({ ...k, grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }) as Constraint);
+  const z = Float64Array.from(z0);
+  let t = t0;
+  for (let it = 0; it < 20; it++) {
+    const posed = posedAt(chart, z);
+    const J = new Matrix(m, n + 1);
+    const F = new Float64Array(m);
+    let norm = 0;
+    for (let k = 0; k < m; k++) {
+      const con = work[k]!;
+      const g = evaluate(con, chart, posed, true, dep, true);
+      if (!Number.isFinite(g)) return null;
+      F[k] = -(g - con.c * t) / L;
+      norm = Math.max(norm, Math.abs(F[k]!));
+      for (let i = 0; i < n; i++) J.set(k, i, con.grad[i]!);
+      J.set(k, n, -con.c);
+    }
+    if (norm <= POLISH_RESIDUAL_TOL) return { z, t };
+    const d = leastSquares(J, F);
+    for (let i = 0; i < n; i++) z[i] = z[i]! + d[i]! * L;
+    t += d[n]! * L;
+  }
+  return null;
+}
+
 /** NNLS forces at z, or null when they do not balance to FORCE_BALANCE_TOL. */
 function nonNegativeForces(chart: Chart, cons: Constraint[], z: Float64Array, dep: DepartureSpec | null): Float64Array | null {
   const n = chart.nFree, m = cons.length;

@@ -1,7 +1,8 @@
 // Second-order test at a Kuhn–Tucker point: the Hessian of the Lagrangian, W = Σ λ_k ∇²g_k, must be
-// negative semidefinite on the critical subspace {dz : ∇g_k·dz = 0 for every k with λ_k > 0} for a
-// local maximum (the standard second-order necessary condition; along that subspace t does not change to
-// first order). A positive eigenvalue means a saddle: a symmetric arrangement is often a maximum among
+// negative semidefinite on the critical cone (motions that keep the contacts with positive force and do
+// not close the others; t does not change along them to first order) for a local maximum — the standard
+// second-order necessary condition. Checked on the subspace that keeps every active contact (inside the
+// cone), and on the one that keeps only the forced contacts when its best direction opens the rest. A positive eigenvalue means a saddle: a symmetric arrangement is often a maximum among
 // symmetric ones but a saddle among all, and the eigenvector is the way out.
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { Chart } from './chart.js';
@@ -12,6 +13,8 @@ import { kktJacobian } from './polish.js';
 const POSITIVE_FORCE_REL = 1e-9;
 /** Singular values of the active gradients below this fraction of the largest span the critical subspace. */
 const NULL_REL = 1e-9;
+/** First-order change (dimensionless) of an idle contact still counted as not closing it. */
+const OPENING_TOL = 1e-9;
 
 export interface Curvature {
   /** Largest eigenvalue of W on the critical subspace, times the length scale (dimensionless). */
@@ -29,9 +32,30 @@ export function criticalCurvature(
   if (J === null) return null;
   let lmax = 0;
   for (const l of lambda) lmax = Math.max(lmax, l);
-  const rows: number[] = [];
-  for (let k = 0; k < m; k++) if (lambda[k]! > POSITIVE_FORCE_REL * lmax) rows.push(k);
-  // Null space of the binding gradients (rows n+1+k, columns 0..n-1 of the KKT Jacobian).
+  const all = [...Array(m).keys()];
+  const binding = all.filter((k) => lambda[k]! > POSITIVE_FORCE_REL * lmax);
+  // Keeping every active contact stays inside the critical cone: positive curvature there is a saddle.
+  const strict = curvatureOn(J, n, all);
+  if (strict.maxCurvature > 0 || binding.length === all.length) return strict;
+  // Only the binding contacts held: the cone also allows opening the others, so the direction counts
+  // only if it (or its opposite) does not close an active contact to first order.
+  const wide = curvatureOn(J, n, binding);
+  if (wide.direction !== null && wide.maxCurvature > strict.maxCurvature) {
+    const idle = all.filter((k) => !binding.includes(k));
+    for (const sign of [1, -1]) {
+      const ok = idle.every((k) => {
+        let d = 0;
+        for (let i = 0; i < n; i++) d += J.get(n + 1 + k, i) * sign * wide.direction![i]!;
+        return d >= -OPENING_TOL;
+      });
+      if (ok) return { maxCurvature: wide.maxCurvature, direction: Float64Array.from(wide.direction, (v) => sign * v) };
+    }
+  }
+  return strict;
+}
+
+/** Largest eigenvalue of W on {dz : ∇g_k·dz = 0 for k in rows} (rows of the KKT Jacobian). */
+function curvatureOn(J: Matrix, n: number, rows: number[]): Curvature {
   let N: Matrix;
   if (rows.length === 0) {
     N = Matrix.eye(n, n);
@@ -46,7 +70,7 @@ export function criticalCurvature(
     const V = svd.rightSingularVectors;
     const cols: number[] = [];
     for (let j = 0; j < n; j++) if (!((s[j] ?? 0) > NULL_REL * smax)) cols.push(j);
-    if (cols.length === 0) return { maxCurvature: 0, direction: null };
+    if (cols.length === 0) return { maxCurvature: -Infinity, direction: null };
     N = new Matrix(n, cols.length);
     cols.forEach((j, c) => {
       for (let i = 0; i < n; i++) N.set(i, c, V.get(i, j));

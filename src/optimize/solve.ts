@@ -12,13 +12,13 @@ import { InputError } from '../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../model/symmetry.js';
 import type { Ring, Symmetry } from '../model/types.js';
 import { linkingMatrix } from '../topology/index.js';
-import { buildChart, posedAt, ringsOf, type Chart, type Posed } from './chart.js';
+import { buildChart, posedAt, ringsOf, type Chart, type GaugeGroup, type Posed } from './chart.js';
 import { activeSet, collectConstraints } from './collect.js';
-import { certify } from './certificate.js';
+import { certify, CURVATURE_TOL } from './certificate.js';
 import type { Constraint, DepartureSpec } from './constraints.js';
 import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
 import { perturbRings } from './perturb.js';
-import { polish } from './polish.js';
+import { polish, restoreContacts } from './polish.js';
 import { criticalCurvature } from './secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
 import { radiusLimit, representativePairs, scanPairs, trueTube, type PairScan } from './scan.js';
@@ -42,9 +42,13 @@ const ACTIVE_TOLS = [1e-9, 1e-7, 1e-5, 1e-3];
 const POLISH_LOSS_REL = 1e-12;
 /** Saddles stepped off at most, and the size of that step (relative to the smallest core radius). */
 const MAX_ESCAPES = 3;
-const ESCAPE_STEP_REL = 1e-2;
+const ESCAPE_STEPS_REL = [1e-2, 3e-2, 1e-1];
+/** Balance residual up to which a near-critical point is searched for a way off a saddle. */
+const ESCAPE_BALANCE_TOL = 1e-3;
 /** Consecutive failed local solves tolerated. */
 const MAX_STEP_FAILURES = 5;
+/** Relative rounding allowed on the departure bound. */
+const DEPARTURE_ROUNDING_REL = 1e-12;
 /** Halvings of the start perturbation tried before giving up on a seeded start. */
 const PERTURB_RETRIES = 8;
 
@@ -84,7 +88,8 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
   state.scans = scanPairs(posedOf(start, orbits), pairs, w);
   state.t = trueTube(state.scans, radii(start), w);
   state.history.push(state.t);
-  const ctx: Context = { orbits, pairs, w, dep, linking: problem.linking, scale, finalTol: Math.max(options.tol, 1e-15) };
+  const gauge: GaugeGroup = dep ? { elements: dep.orbits.elements, origin: dep.orbits.origin } : { elements: orbits.elements, origin: orbits.origin };
+  const ctx: Context = { orbits, pairs, w, dep, gauge, linking: problem.linking, scale, finalTol: Math.max(options.tol, 1e-15) };
   const tMax = radiusLimit(radii(start), w);
   let delta = DELTA_START_REL * scale;
   let trigger = POLISH_TRIGGER_START;
@@ -98,11 +103,11 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
   };
 
   while (state.iterations < options.maxIterations) {
-    const chart = buildChart(state.rings, orbits, true);
+    const chart = buildChart(state.rings, orbits, ctx.gauge);
     const posed = posedAt(chart, new Float64Array(chart.nFree));
     const box = Math.min(delta, BOX_MAX_REL * scale);
     const cons = collectConstraints(chart, posed, state.scans, { t: state.t, margin: MARGIN_TRUST_RADII * box, w, dep, samples: true });
-    const step = await localStep(cons, chart.nFree, state.t, delta, box, tMax, algorithm);
+    const step = await localStep(cons, chart.nFree, state.t, delta, box, tMax, algorithm, trigger * state.t);
     state.iterations++;
     if (!step.ok) {
       failures++;
@@ -133,7 +138,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
         }
         // A saddle: step off it along the ascent direction and climb again.
         escapes++;
-        const off = escapeSaddle(state, ctx, dir);
+        const off = escapeSaddle(state, ctx, fin);
         if (off === null) {
           stopReason = 'polished (saddle, no way off found)';
           break;
@@ -141,11 +146,26 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
         state.rings = off.rings;
         state.scans = off.scans;
         state.t = off.t;
-        delta = ESCAPE_STEP_REL * scale;
+        delta = ESCAPE_STEPS_REL[0]! * scale;
         trigger = POLISH_TRIGGER_START;
         continue;
       }
-      // No polish yet: tighten the trigger and keep stepping while the model still promises a gain.
+      // No polish: perhaps a saddle the first-order model cannot leave (its gain there is second order).
+      if (escapes < MAX_ESCAPES) {
+        const here = assess(state, ctx, null);
+        const off = here.escape ? escapeSaddle(state, ctx, here) : null;
+        if (off) {
+          escapes++;
+          state.rings = off.rings;
+          state.scans = off.scans;
+          state.t = off.t;
+          delta = ESCAPE_STEPS_REL[0]! * scale;
+          trigger = POLISH_TRIGGER_START;
+          record();
+          continue;
+        }
+      }
+      // Tighten the trigger and keep stepping while the model still promises a gain.
       while (!(predicted > trigger * state.t) && trigger > ctx.finalTol) trigger = Math.max(trigger * 0.01, ctx.finalTol);
       if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
         stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
@@ -156,7 +176,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
     const trialScans = scanPairs(posedOf(trial, orbits), pairs, w);
     const tTrial = trueTube(trialScans, radii(trial), w);
     const ratio = (tTrial - state.t) / predicted;
-    if (tTrial > 0 && ratio >= ACCEPT_RATIO && sameLinking(trial, problem.linking)) {
+    if (tTrial > 0 && ratio >= ACCEPT_RATIO && withinDeparture(trial, dep) && sameLinking(trial, problem.linking)) {
       state.rings = trial;
       state.scans = trialScans;
       state.t = tTrial;
@@ -204,6 +224,7 @@ interface Polished {
 
 interface Context {
   orbits: RingOrbits;
+  gauge: GaugeGroup;
   pairs: [number, number][];
   w: number[];
   dep: DepartureSpec | null;
@@ -218,12 +239,14 @@ interface Final {
   cert: ReturnType<typeof certify>;
   /** Ascent direction (chart coordinates of a chart at `rings`) when the point is a saddle. */
   escape: Float64Array | null;
+  /** Contacts with positive force, which the escape keeps touching. */
+  binding: Constraint[];
   polishMessage: string | null;
 }
 
 /** Newton on the active set, for each candidate threshold in turn; accepted only if the kernel agrees. */
 function tryPolish(state: LoopState, ctx: Context): Polished | null {
-  const chart = buildChart(state.rings, ctx.orbits, true);
+  const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
   const posed = posedAt(chart, new Float64Array(chart.nFree));
   const all = collectConstraints(chart, posed, state.scans, { t: state.t, margin: ACTIVE_TOLS.at(-1)! * state.t, w: ctx.w, dep: ctx.dep, samples: true });
   let lastSet = '';
@@ -239,7 +262,7 @@ function tryPolish(state: LoopState, ctx: Context): Polished | null {
     const scans = scanPairs(posedOf(rings, ctx.orbits), ctx.pairs, ctx.w);
     const t = trueTube(scans, radii(rings), ctx.w);
     if (!(t >= state.t * (1 - POLISH_LOSS_REL)) || !(t >= r.t * (1 - 1e-9))) continue;
-    if (!sameLinking(rings, ctx.linking)) continue;
+    if (!sameLinking(rings, ctx.linking) || !withinDeparture(rings, ctx.dep)) continue;
     return { rings, scans, t, activeTol: tol, message: r.message };
   }
   return null;
@@ -247,7 +270,7 @@ function tryPolish(state: LoopState, ctx: Context): Polished | null {
 
 /** Certificate (first and second order) at the current poses. */
 function assess(state: LoopState, ctx: Context, polished: Polished | null): Final {
-  const chart = buildChart(state.rings, ctx.orbits, true);
+  const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
   const posed = posedAt(chart, new Float64Array(chart.nFree));
   const t = state.t;
   const all = collectConstraints(chart, posed, state.scans, { t, margin: ACTIVE_TOLS.at(-1)! * t, w: ctx.w, dep: ctx.dep, samples: true });
@@ -259,37 +282,56 @@ function assess(state: LoopState, ctx: Context, polished: Polished | null): Fina
     const active = activeSet(all, t, tol * t);
     if (active.length === 0) continue;
     const first = certify({ ...base, active, activeTol: tol });
-    if (!first.certificate.certified) {
-      out ??= { rings: state.rings, t, cert: first, escape: null, polishMessage: polished?.message ?? null };
+    // Near a saddle the balance is only approximate; the curvature still shows the way out.
+    if (!first.certificate.certified && !(first.certificate.balanceResidual <= ESCAPE_BALANCE_TOL)) {
+      out ??= { rings: state.rings, t, cert: first, escape: null, binding: [], polishMessage: polished?.message ?? null };
       continue;
     }
     // Samples bound a contact arc from above, so curvature computed with them can be spurious: skip it there.
     const curv = active.some((k) => k.kind === 'sample') ? null : criticalCurvature(chart, active, first.lambda, ctx.scale, ctx.dep);
     const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null });
-    const escape = !cert.certificate.certified && curv !== null ? curv.direction : null;
-    out = { rings: state.rings, t, cert, escape, polishMessage: polished?.message ?? null };
-    break;
+    const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
+    const lmax = Math.max(0, ...first.lambda);
+    const binding = active.filter((_, k) => first.lambda[k]! > 1e-9 * lmax);
+    const candidate: Final = { rings: state.rings, t, cert, escape, binding, polishMessage: polished?.message ?? null };
+    if (cert.certificate.certified || escape !== null) {
+      out = candidate;
+      break;
+    }
+    out ??= candidate;
   }
   return out ?? {
     rings: state.rings, t,
     cert: certify({ ...base, active: [], activeTol: 1 }),
-    escape: null, polishMessage: polished?.message ?? null,
+    escape: null, binding: [], polishMessage: polished?.message ?? null,
   };
 }
 
-/** Step a little both ways along the ascent direction of a saddle; keep the side with the thicker tube. */
-function escapeSaddle(state: LoopState, ctx: Context, dir: Float64Array): { rings: Ring[]; scans: PairScan[]; t: number } | null {
-  const chart = buildChart(state.rings, ctx.orbits, true);
-  let best: { rings: Ring[]; scans: PairScan[]; t: number } | null = null;
-  for (const sign of [1, -1]) {
-    const z = Float64Array.from(dir, (v) => sign * v * ESCAPE_STEP_REL * ctx.scale);
-    const rings = ringsOf(chart, posedAt(chart, z));
-    const scans = scanPairs(posedOf(rings, ctx.orbits), ctx.pairs, ctx.w);
-    const t = trueTube(scans, radii(rings), ctx.w);
-    if (!(t > 0) || !sameLinking(rings, ctx.linking)) continue;
-    if (best === null || t > best.t) best = { rings, scans, t };
+/**
+ * Step off a saddle: move along the ascent direction, return to the binding contacts by Gauss–Newton (so
+ * the tube is no longer lost to first order), and keep the first move whose true tube beats the saddle's.
+ * The outer loop only accepts gains, so it cannot slide back.
+ */
+function escapeSaddle(state: LoopState, ctx: Context, fin: Final): { rings: Ring[]; scans: PairScan[]; t: number } | null {
+  const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
+  const dir = fin.escape!;
+  // Under a departure bound ε a step of s moves the departure by at most s: try steps that fit first.
+  const sizes = ctx.dep ? [0.25 * ctx.dep.epsilon / ctx.scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL;
+  for (const size of sizes) {
+    let best: { rings: Ring[]; scans: PairScan[]; t: number } | null = null;
+    for (const sign of [1, -1]) {
+      const z0 = Float64Array.from(dir, (v) => sign * v * size * ctx.scale);
+      const back = restoreContacts(chart, fin.binding, z0, state.t, ctx.scale, ctx.dep);
+      if (back === null) continue;
+      const rings = ringsOf(chart, posedAt(chart, back.z));
+      const scans = scanPairs(posedOf(rings, ctx.orbits), ctx.pairs, ctx.w);
+      const t = trueTube(scans, radii(rings), ctx.w);
+      if (!(t > state.t) || !withinDeparture(rings, ctx.dep) || !sameLinking(rings, ctx.linking)) continue;
+      if (best === null || t > best.t) best = { rings, scans, t };
+    }
+    if (best) return best;
   }
-  return best;
+  return null;
 }
 
 /** Worst exact violation relative to the tube (0 when every pair clears t (w_a + w_b)). */
@@ -325,6 +367,12 @@ function sameLinking(rings: Ring[], linking: number[][]): boolean {
     for (let j = 0; j < rings.length; j++) if (i !== j && (L[i]![j] ?? 0) !== (linking[i]?.[j] ?? 0)) return false;
   }
   return true;
+}
+
+/** The departure bound holds (up to rounding of the projection). */
+function withinDeparture(rings: Ring[], dep: DepartureSpec | null): boolean {
+  if (dep === null) return true;
+  return Math.sqrt(departureResidual(rings, dep.orbits).squared) <= dep.epsilon * (1 + DEPARTURE_ROUNDING_REL);
 }
 
 /** Bring the departure from symmetry under the bound by shrinking the asymmetric part of the poses. */

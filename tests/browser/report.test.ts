@@ -10,6 +10,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chromium, type BrowserContext } from 'playwright-core';
 import { buildReportHtml } from '../../reports/html.js';
 import { loadPlotlySource } from '../../reports/plotlySource.js';
+import { analyzePlay } from '../../src/analyze/play.js';
+import { playView } from '../../reports/playView.js';
 import { hopfResult, torus3Compare } from '../reportFixture.js';
 
 const CHROMIUM = '/usr/bin/chromium';
@@ -42,13 +44,15 @@ describe('HTML report in chromium', () => {
   });
 
   const cases = [
-    { name: 'compare result (torus:3, hand-built)', file: 'report.html', shot: 'report.png', result: () => torus3Compare(), plots: 5 },
-    { name: 'inflate result (hopf, hand-built)', file: 'report-hopf.html', shot: 'report-hopf.png', result: () => hopfResult(), plots: 3 },
+    { name: 'compare result (torus:3, hand-built)', file: 'report.html', shot: 'report.png', result: () => torus3Compare(), plots: 5, play: false },
+    { name: 'inflate result with play (hopf, hand-built)', file: 'report-hopf.html', shot: 'report-hopf.png', result: () => hopfResult(), plots: 3, play: true },
   ];
 
   for (const c of cases) {
     it(`opens offline and renders every plot: ${c.name}`, async () => {
-      const built = buildReportHtml(c.result(), { plotlySource: loadPlotlySource(), sourceName: 'fixture.json' });
+      const result = c.result();
+      const play = c.play ? playView(await analyzePlay(result)) : null;
+      const built = buildReportHtml(result, { plotlySource: loadPlotlySource(), sourceName: 'fixture.json', play });
       expect(built.plots).toHaveLength(c.plots);
       const path = join(ARTIFACTS, c.file);
       writeFileSync(path, built.html);
