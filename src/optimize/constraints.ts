@@ -134,14 +134,13 @@ function trackMinimum(posed: Posed, a: number, b: number, th0: number, ph0: numb
   const oa = 3 * a, ob = 3 * b;
   for (let it = 0; it < STRUT_NEWTON_MAX; it++) {
     const ca = Math.cos(th), sa = Math.sin(th), cb = Math.cos(ph), sb = Math.sin(ph);
-    let dD = 0, gA = 0, gB = 0, aa = 0, bb = 0, ab = 0, dA2 = 0, dB2 = 0;
+    let gA = 0, gB = 0, aa = 0, bb = 0, ab = 0, dA2 = 0, dB2 = 0;
     for (let k = 0; k < 3; k++) {
       const ea = ca * posed.e1[oa + k]! + sa * posed.e2[oa + k]!;
       const ta = -sa * posed.e1[oa + k]! + ca * posed.e2[oa + k]!;
       const eb = cb * posed.e1[ob + k]! + sb * posed.e2[ob + k]!;
       const tb = -sb * posed.e1[ob + k]! + cb * posed.e2[ob + k]!;
       const D = posed.c[oa + k]! + Ra * ea - posed.c[ob + k]! - Rb * eb;
-      dD += D * D;
       gA += D * Ra * ta;
       gB -= D * Rb * tb;
       aa += Ra * Ra * ta * ta;
@@ -168,7 +167,6 @@ function trackMinimum(posed: Posed, a: number, b: number, th0: number, ph0: numb
     }
     th += dth;
     ph += dph;
-    void dD;
     if (step <= ANGLE_STEP_TOL) break;
   }
   if (Math.abs(th - th0) > STRUT_LOST_ANGLE || Math.abs(ph - ph0) > STRUT_LOST_ANGLE) return null;

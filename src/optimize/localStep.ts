@@ -73,7 +73,6 @@ export async function localStep(
   cons: readonly Constraint[], nFree: number, t: number, delta: number, box: number, tMax: number, algorithm: InnerAlgorithm,
   confirmBelow = 0,
 ): Promise<StepResult> {
-  if (process.env.THICKRING_DUMP) (await import('node:fs')).writeFileSync('.thickring-tmp-opt/qp_last.json', JSON.stringify({ cons: cons.map((k) => ({ kind: k.kind, g: k.g, c: k.c, grad: Array.from(k.grad) })), nFree, t, delta, box, tMax }));
   let first: StepResult | null = null;
   if (nloptFailures < NLOPT_FAILURE_BUDGET) {
     try {
@@ -82,11 +81,6 @@ export async function localStep(
       nloptFailures++;
       nlopt.GC.flush();
     }
-  }
-  if (process.env.THICKRING_DEBUG_QP) {
-    const t0 = performance.now();
-    const h = await highsStep(cons, nFree, t, delta, box, tMax);
-    console.error('  qp nlopt', first?.ok, first?.tau, 'highs', h.ok, h.tau, (performance.now() - t0).toFixed(2), 'ms', cons.length);
   }
   const firstOk = first !== null && first.ok && feasible(first, cons, t, box);
   if (firstOk && first!.tau > confirmBelow) return first!;

@@ -64,7 +64,6 @@ function newton(
   chart: Chart, active: Constraint[], t0: number, lambda0: Float64Array, L: number, dep: DepartureSpec | null,
 ): PolishResult {
   const n = chart.nFree, m = active.length;
-  const N = n + 1 + m;
   // Work on copies: tracking moves the stored angles.
   const cons = active.map((k) => ({ ...k, grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }) as Constraint);
   let z = new Float64Array(n);
@@ -102,10 +101,8 @@ function newton(
       });
       alpha *= 0.5;
     }
-    if (process.env.THICKRING_DEBUG) console.error('  newton', it, norm, accepted, alpha);
     if (!accepted) break;
   }
-  void N;
   const ok = norm <= POLISH_RESIDUAL_TOL * 1e3;
   return {
     ok, z, t, lambda, active: cons, iterations: it, residual: norm,

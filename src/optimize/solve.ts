@@ -77,7 +77,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
   for (let k = 0; k <= PERTURB_RETRIES && chosen === null; k++, size /= 2) {
     let cand = perturbRings(start, orbits, options.seed, k === PERTURB_RETRIES ? 0 : size);
     if (dep) cand = shrinkDeparture(cand, dep);
-    if (startIsValid(cand, problem.linking, pairs, w)) chosen = cand;
+    if (startIsValid(cand, problem.linking, w)) chosen = cand;
   }
   if (chosen === null) {
     return infeasible(start, w, 'the start rings intersect or do not have the required linking numbers');
@@ -120,7 +120,6 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
       continue;
     }
     const predicted = step.tau;
-    if (process.env.THICKRING_DEBUG) console.error('it', state.iterations, 't', state.t, 'pred', predicted.toExponential(2), 'delta', delta.toExponential(2), 'box', box.toExponential(2), 'cons', cons.length, step.solver);
     if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
       // The local model promises little more: finish by Newton, then check the second-order condition.
       const p = tryPolish(state, ctx);
@@ -352,12 +351,11 @@ function infeasible(rings: Ring[], w: number[], why: string): SolveOutcome {
   };
 }
 
-function startIsValid(rings: Ring[], linking: number[][], pairs: [number, number][], w: number[]): boolean {
+function startIsValid(rings: Ring[], linking: number[][], w: number[]): boolean {
   if (!sameLinking(rings, linking)) return false;
   const orbits = trivialOrbits(rings.length);
   const all: [number, number][] = [];
   for (let i = 0; i < rings.length; i++) for (let j = i + 1; j < rings.length; j++) all.push([i, j]);
-  void pairs;
   return trueTube(scanPairs(posedOf(rings, orbits), all, w), radii(rings), w) > 0;
 }
 
