@@ -1,16 +1,8 @@
 // Seeded workloads shared by the kernel benchmark and its worker threads.
+import { seededRandom as mulberry32 } from '../src/model/random.js';
+
 export const PAIR_STRIDE = 14; // cA(3) nA(3) RA cB(3) nB(3) RB
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Random ring pairs of comparable size, often interlocked (centres within about one radius). */
 export function makePairs(count: number, seed: number): Float64Array {

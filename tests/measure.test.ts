@@ -9,6 +9,7 @@ import type { Io } from '../cli/io.js';
 import { measureLayout } from '../src/analyze/measure.js';
 import { LAYOUT_FORMAT, parseLayout } from '../src/model/layout.js';
 import type { Vec3 } from '../src/model/types.js';
+import { seededRandom as mulberry32 } from '../src/model/random.js';
 
 type Json = Record<string, unknown>;
 const ring = (name: string, center: Vec3, normal: Vec3, radius: number, tube?: number): Json =>
@@ -235,14 +236,4 @@ function cross(a: Vec3, b: Vec3): Vec3 {
 function unitV(a: Vec3): Vec3 {
   const l = Math.hypot(...a);
   return [a[0] / l, a[1] / l, a[2] / l];
-}
-function mulberry32(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }

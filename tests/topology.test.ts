@@ -7,6 +7,7 @@ import {
   allPairsUnlinked, connectedness, linkingChanges, linkingMatrix, linkingNumber,
 } from '../src/topology/index.js';
 import type { Circle, Vec3 } from '../src/model/types.js';
+import { seededRandom as mulberry32 } from '../src/model/random.js';
 
 const N = 400;
 
@@ -49,16 +50,6 @@ function gauss(a: Circle, b: Circle): { lk: number; minDist: number } {
   return { lk: sum / (4 * Math.PI), minDist: Math.sqrt(min2) };
 }
 
-function mulberry32(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function crossV(a: Vec3, b: Vec3): Vec3 {
   return [a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]];

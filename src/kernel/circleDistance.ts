@@ -34,7 +34,7 @@ export const MAX_CONTACTS = 16;
 export const CONTINUUM_REL_TOL = 1e-12;
 /** Relative size of g below which the continuum test is run (cheap pre-filter). */
 const G_SMALL_REL = 1e-6;
-const INITIAL_INTERVALS = 24;
+const INITIAL_INTERVALS = 16;
 const EPS = 2.220446049250313e-16;
 /** Below this size of g relative to its terms, g is formed by heavy cancellation: use the sampled regime. */
 const NEAR_CONTINUUM_REL = 1e-6;
@@ -146,10 +146,16 @@ for (let l = 0; l <= MAX_LEVEL; l++) {
 }
 const GRID_C = new Float64Array(2 * INITIAL_INTERVALS + 1);
 const GRID_S = new Float64Array(2 * INITIAL_INTERVALS + 1);
+/** cos ks, sin ks (k = 1..4) at every grid point: level-0 work needs no recurrences. */
+const GRID_TAB = new Float64Array(8 * (2 * INITIAL_INTERVALS + 1));
 for (let i = 0; i <= 2 * INITIAL_INTERVALS; i++) {
   const s = (i * Math.PI) / INITIAL_INTERVALS;
   GRID_C[i] = Math.cos(s);
   GRID_S[i] = Math.sin(s);
+  for (let k = 1; k <= 4; k++) {
+    GRID_TAB[8 * i + 2 * k - 2] = Math.cos(k * s);
+    GRID_TAB[8 * i + 2 * k - 1] = Math.sin(k * s);
+  }
 }
 
 // Geometry of the current query (module scope so helpers need no arguments).
@@ -230,9 +236,11 @@ export function circleContacts(
   for (let i = 0; i < 9; i++) G[i]! *= inv;
   for (let k = 1; k <= 4; k++) L3 += k * k * k * Math.hypot(G[2 * k - 1]!, G[2 * k]!);
   // Grid values of g (shared endpoints of the initial intervals).
+  const g0 = G[0]!, g1 = G[1]!, g2 = G[2]!, g3 = G[3]!, g4 = G[4]!, g5 = G[5]!, g6 = G[6]!, g7 = G[7]!, g8 = G[8]!;
   for (let i = 0; i <= INITIAL_INTERVALS; i++) {
-    evalTrig4(G, GRID_C[2 * i]!, GRID_S[2 * i]!, EV);
-    GLO[i] = EV[0]!;
+    const t = 16 * i;
+    GLO[i] = g0 + g1 * GRID_TAB[t]! + g2 * GRID_TAB[t + 1]! + g3 * GRID_TAB[t + 2]! + g4 * GRID_TAB[t + 3]!
+      + g5 * GRID_TAB[t + 4]! + g6 * GRID_TAB[t + 5]! + g7 * GRID_TAB[t + 6]! + g8 * GRID_TAB[t + 7]!;
   }
   const relative = gNorm / gScale;
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.

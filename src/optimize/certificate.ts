@@ -82,7 +82,8 @@ export function certify(input: CertifyInput): CertifyOutput {
   const struts = active.filter((k) => k.kind === 'strut').length;
   const samples = active.filter((k) => k.kind === 'sample').length;
   const others = active.filter((k) => k.kind === 'radius' || k.kind === 'departure').map((k) => k.kind);
-  const parts = [`${struts} struts`];
+  const parts: string[] = [];
+  if (struts > 0 || samples === 0) parts.push(`${struts} strut${struts === 1 ? '' : 's'}`);
   if (samples > 0) parts.push(`${samples} samples of contact arcs`);
   if (others.length > 0) parts.push(`the ${others.join(' and ')} limit`);
   const what = parts.join(', ');

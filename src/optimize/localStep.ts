@@ -60,8 +60,9 @@ function loadHighs(): Promise<Highs> {
   return highsPromise;
 }
 
-/** Load the WebAssembly solvers once per thread. */
+/** Load the WebAssembly solvers once per thread (HiGHS in the background: it is needed only near the end). */
 export async function readySolvers(): Promise<void> {
+  loadHighs().catch(() => undefined);
   await nlopt.ready;
 }
 

@@ -119,7 +119,9 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
       }
       continue;
     }
+    failures = 0;
     const predicted = step.tau;
+    console.error('it', state.iterations, state.t, predicted.toExponential(2), delta.toExponential(2), cons.length);
     if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
       // The local model promises little more: finish by Newton, then check the second-order condition.
       const p = tryPolish(state, ctx);
@@ -256,6 +258,7 @@ function tryPolish(state: LoopState, ctx: Context): Polished | null {
     lastSet = key;
     const lambda0 = certify({ active, nFree: chart.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false }).lambda;
     const r = polish(chart, active, state.t, lambda0, ctx.scale, ctx.dep);
+    console.error('polish', tol, active.length, active.map(k=>k.kind[0]+k.a+k.b).join(','), r.ok, r.message, r.t);
     if (!r.ok) continue;
     const rings = ringsOf(chart, posedAt(chart, r.z));
     const scans = scanPairs(posedOf(rings, ctx.orbits), ctx.pairs, ctx.w);

@@ -1,14 +1,5 @@
-// Seeded generator for reproducible random tests (mulberry32, a public-domain 32-bit generator).
-export function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+// Seeded helpers for reproducible random tests.
+export { seededRandom as rng } from '../../src/model/random.js';
 
 export function randomUnit(r: () => number): [number, number, number] {
   for (;;) {

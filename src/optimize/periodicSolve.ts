@@ -1,0 +1,281 @@
+// Inflate a periodic arrangement (a weave): maximise the common tube over the cell's ring poses and the
+// lattice vectors (periodicProblem.ts). The method is that of solve.ts on a periodic chart: at the current
+// arrangement the kernel finds every strut between a cell ring and every image within reach; the struts
+// are linearised (images chained to their ring and to the lattice vectors) and the proximal QP of
+// localStep.ts proposes a step, judged on the exact kernel (true tube, linked pairs unchanged) with a
+// trust radius. Once the predicted gain is small, Newton on the KKT system (periodicPolish.ts) finishes and
+// non-negative strut forces (certificate.ts) certify a Kuhn–Tucker point. The second-order test and the
+// saddle escape of solve.ts are not done here.
+import { InputError } from '../model/errors.js';
+import type { Certificate } from '../model/result.js';
+import { periodicLinks, sameLinks } from '../model/periodic.js';
+import { ringPairs } from '../model/ringPairs.js';
+import type { Lattice, Ring } from '../model/types.js';
+import { certify } from './certificate.js';
+import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
+import { seededRandom } from './perturb.js';
+import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from './periodicChart.js';
+import {
+  evaluatePeriodic, newPeriodicConstraint, periodicTube, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
+} from './periodicConstraints.js';
+import { polishPeriodic } from './periodicPolish.js';
+import type { PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
+import type { SolveOptions } from './problem.js';
+
+/** First proximal radius and its cap, and the cap of the step box, relative to the smallest core radius. */
+const DELTA_START_REL = 0.05;
+const DELTA_MAX_REL = 1e4;
+const BOX_MAX_REL = 0.25;
+const DELTA_MIN_REL = 1e-13;
+/** Constraints within this many step boxes of touching enter the local model. */
+const MARGIN_BOXES = 8;
+const ACCEPT_RATIO = 0.1;
+const GROW_RATIO = 0.75;
+const POLISH_TRIGGER_START = 1e-4;
+/** Slack thresholds (relative to the tube) tried for the active set of the polish and the certificate. */
+const ACTIVE_TOLS = [1e-9, 1e-7, 1e-5, 1e-3];
+const POLISH_LOSS_REL = 1e-12;
+const MAX_STEP_FAILURES = 5;
+const PERTURB_RETRIES = 8;
+/** Pairs whose bounding spheres are this many core radii beyond touching distance are not scanned. */
+const SCAN_MARGIN_REL = 2;
+
+export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
+  validate(problem);
+  await readySolvers();
+  const w = problem.tubeRatios.slice();
+  const R = Float64Array.from(problem.rings.map((r) => r.radius));
+  const scale = Math.min(...R);
+  const tMax = Math.min(...problem.rings.map((r, i) => r.radius / w[i]!));
+  const algorithm: InnerAlgorithm = options.algorithm ?? 'slsqp';
+  const ctx: Ctx = { w, R, scale, tMax, links: problem.links, finalTol: Math.max(options.tol, 1e-15) };
+
+  // Start: perturb from the seed, halving until the linked pairs hold and nothing touches.
+  let size = options.perturbation;
+  let start: State | null = null;
+  for (let k = 0; k <= PERTURB_RETRIES && start === null; k++, size /= 2) {
+    const cand = perturb(problem.rings, problem.lattice, options.seed, k === PERTURB_RETRIES ? 0 : size);
+    const s = stateAt(cand.rings, cand.lattice, ctx);
+    if (s.t > 0 && sameLinks(problem.links, periodicLinks(s.rings, s.lattice))) start = s;
+  }
+  if (start === null) return infeasible(problem, 'the start rings intersect or do not have the pattern\'s linked pairs');
+
+  let state = start;
+  let iterations = 0;
+  const history = [state.t];
+  let delta = DELTA_START_REL * scale;
+  let trigger = POLISH_TRIGGER_START;
+  let failures = 0;
+  let stopReason = 'iteration limit';
+  let polished: Polished | null = null;
+
+  while (iterations < options.maxIterations) {
+    const pc = buildPeriodicChart(state.rings, state.lattice);
+    const box = Math.min(delta, BOX_MAX_REL * scale);
+    const cons = collect(pc, state, ctx, MARGIN_BOXES * box);
+    const step = await localStep(cons, pc.nFree, state.t, delta, box, tMax, algorithm, trigger * state.t);
+    iterations++;
+    if (!step.ok) {
+      failures++;
+      delta *= 0.25;
+      history.push(state.t);
+      if (failures > MAX_STEP_FAILURES || delta < DELTA_MIN_REL * scale) {
+        stopReason = 'the local solver failed';
+        break;
+      }
+      continue;
+    }
+    const predicted = step.tau;
+    if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+      const p = tryPolish(state, ctx);
+      if (p) {
+        state = p.state;
+        history.push(state.t);
+        options.onIteration?.(iterations, state.t);
+        polished = p;
+        stopReason = 'polished';
+        break;
+      }
+      while (!(predicted > trigger * state.t) && trigger > ctx.finalTol) trigger = Math.max(trigger * 0.01, ctx.finalTol);
+      if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+        stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
+        break;
+      }
+    }
+    const trial = stateOf(pc, periodicPosedAt(pc, step.z));
+    const next = stateAt(trial.rings, trial.lattice, ctx);
+    const ratio = (next.t - state.t) / predicted;
+    if (next.t > 0 && ratio >= ACCEPT_RATIO && sameLinks(ctx.links, periodicLinks(next.rings, next.lattice))) {
+      state = next;
+      if (ratio >= GROW_RATIO) delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
+    } else {
+      delta *= 0.25;
+    }
+    history.push(state.t);
+    options.onIteration?.(iterations, state.t);
+  }
+
+  const fin = assess(state, ctx, polished);
+  const status = fin.cert.certificate.certified
+    ? 'optimal'
+    : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
+  const message =
+    `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
+    ` (${stopReason}${polished ? `: ${polished.message}` : ''}); tube ${state.t} (layout units)`;
+  return {
+    status, tube: state.t, rings: withTubes(state.rings, state.t, w), lattice: copyLattice(state.lattice),
+    iterations, history, contacts: fin.cert.contacts, certificate: fin.cert.certificate, message,
+  };
+}
+
+// ---- helpers -------------------------------------------------------------------------------------
+
+interface Ctx {
+  w: number[];
+  R: Float64Array;
+  scale: number;
+  tMax: number;
+  links: PeriodicProblem['links'];
+  finalTol: number;
+}
+
+interface State {
+  rings: Ring[];
+  lattice: Lattice;
+  scans: PeriodicScan[];
+  t: number;
+}
+
+interface Polished {
+  state: State;
+  activeTol: number;
+  message: string;
+}
+
+/** Scan every pair within reach and take the true tube. */
+function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
+  const pc = buildPeriodicChart(rings, lattice);
+  const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
+  const margin = 2 * Math.max(...ctx.w) * ctx.tMax + SCAN_MARGIN_REL * ctx.scale;
+  const pairs: PeriodicPair[] = ringPairs({ rings, lattice }, margin).map((p) => ({ a: p.i, b: p.j, shift: p.shift }));
+  const scans = scanPeriodic(pp, pairs, ctx.w);
+  return { rings, lattice, scans, t: periodicTube(scans, ctx.R, ctx.w) };
+}
+
+/** Struts within `margin` (layout units) of touching, with gradients, and the radius limit. */
+function collect(pc: PeriodicChart, state: State, ctx: Ctx, margin: number): PeriodicConstraint[] {
+  const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
+  const out: PeriodicConstraint[] = [];
+  for (const s of state.scans) {
+    if (s.distance - state.t * s.c > margin) continue;
+    for (const k of s.contacts) {
+      if (k.d - state.t * s.c > margin) continue;
+      const con = newPeriodicConstraint('strut', s.a, s.b, s.shift, k.ta, k.tb, s.c, pc.nFree, s.continuum !== null);
+      if (Number.isFinite(evaluatePeriodic(con, pc, pp, true))) out.push(con);
+    }
+  }
+  let best = -1, lim = Infinity;
+  ctx.w.forEach((wi, i) => {
+    if (ctx.R[i]! / wi < lim) {
+      lim = ctx.R[i]! / wi;
+      best = i;
+    }
+  });
+  if (best >= 0 && lim - state.t <= margin) {
+    const con = newPeriodicConstraint('radius', best, best, [], 0, 0, 1, pc.nFree);
+    con.g = lim;
+    out.push(con);
+  }
+  return out;
+}
+
+/** Newton on the active set for each candidate threshold; accepted only if the kernel agrees. */
+function tryPolish(state: State, ctx: Ctx): Polished | null {
+  const pc = buildPeriodicChart(state.rings, state.lattice);
+  const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * state.t);
+  let lastSet = '';
+  for (const tol of ACTIVE_TOLS) {
+    const active = all.filter((k) => k.g - k.c * state.t <= tol * state.t);
+    const key = active.map((k) => `${k.kind}${k.a}/${k.b}/${k.shift.join(',')}/${k.tb.toFixed(6)}`).join(';');
+    if (active.length === 0 || key === lastSet) continue;
+    lastSet = key;
+    const lambda0 = certify({ active, nFree: pc.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false }).lambda;
+    const r = polishPeriodic(pc, active, state.t, lambda0, ctx.scale);
+    if (!r.ok) continue;
+    const trial = stateOf(pc, periodicPosedAt(pc, r.z));
+    const next = stateAt(trial.rings, trial.lattice, ctx);
+    if (!(next.t >= state.t * (1 - POLISH_LOSS_REL)) || !(next.t >= r.t * (1 - 1e-9))) continue;
+    if (!sameLinks(ctx.links, periodicLinks(next.rings, next.lattice))) continue;
+    return { state: next, activeTol: tol, message: r.message };
+  }
+  return null;
+}
+
+/** First-order certificate at the final arrangement. */
+function assess(state: State, ctx: Ctx, polished: Polished | null): { cert: ReturnType<typeof certify> } {
+  const pc = buildPeriodicChart(state.rings, state.lattice);
+  const t = state.t;
+  const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * t);
+  let violation = 0;
+  for (const s of state.scans) violation = Math.max(violation, (t * s.c - s.distance) / t);
+  const base = { nFree: pc.nFree, maxViolation: violation, activeTolLimit: Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!), polished: polished !== null };
+  let first: ReturnType<typeof certify> | null = null;
+  for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
+    const active = all.filter((k) => k.g - k.c * t <= tol * t);
+    if (active.length === 0) continue;
+    const cert = certify({ ...base, active, activeTol: tol });
+    if (cert.certificate.certified) return { cert };
+    first ??= cert;
+  }
+  return { cert: first ?? certify({ ...base, active: [], activeTol: 1 }) };
+}
+
+/** Move every ring by up to size·R (centre, layout units; tilt, radians) and every lattice vector by up to size·R. */
+function perturb(rings: readonly Ring[], lattice: Lattice, seed: number, size: number): { rings: Ring[]; lattice: Lattice } {
+  if (seed === 0 || !(size > 0)) return { rings: rings.map(copyRing), lattice: copyLattice(lattice) };
+  const pc = buildPeriodicChart(rings, lattice);
+  const random = seededRandom(seed);
+  const Rmin = Math.min(...rings.map((r) => r.radius));
+  const z = new Float64Array(pc.nFree);
+  for (let k = 0; k < pc.nFree; k++) {
+    const f = pc.free[k]!;
+    const R = f < pc.ring.nFull ? rings[Math.floor(f / 5)]!.radius : Rmin;
+    z[k] = (2 * random() - 1) * size * R;
+  }
+  return stateOf(pc, periodicPosedAt(pc, z));
+}
+
+function infeasible(problem: PeriodicProblem, why: string): PeriodicOutcome {
+  const certificate: Certificate = {
+    method: 'kkt-nnls', balanceResidual: Infinity, maxViolation: Infinity, activeStruts: 0, certified: false,
+    note: `No certificate: ${why}.`,
+  };
+  return {
+    status: 'infeasible', tube: 0, rings: withTubes(problem.rings, 0, problem.tubeRatios), lattice: copyLattice(problem.lattice),
+    iterations: 0, history: [], contacts: [], certificate, message: `infeasible start: ${why}`,
+  };
+}
+
+function withTubes(rings: readonly Ring[], t: number, w: readonly number[]): Ring[] {
+  return rings.map((r, i) => ({ name: r.name, center: [...r.center], normal: [...r.normal], radius: r.radius, tube: t * w[i]! }));
+}
+
+function copyRing(r: Ring): Ring {
+  return { ...r, center: [...r.center], normal: [...r.normal] };
+}
+
+function copyLattice(l: Lattice): Lattice {
+  return { vectors: l.vectors.map((v) => [v[0], v[1], v[2]]) };
+}
+
+function validate(p: PeriodicProblem): void {
+  const n = p.rings.length;
+  if (n === 0) throw new InputError('rings: a periodic layout needs at least one ring in its cell; add rings');
+  if (p.tubeRatios.length !== n) throw new InputError(`tubeRatios: ${p.tubeRatios.length} entries for ${n} rings; give one ratio per ring`);
+  p.tubeRatios.forEach((w, i) => {
+    if (!(w > 0) || !Number.isFinite(w)) throw new InputError(`ring ${p.rings[i]!.name}: tube ratio ${w} must be a finite number > 0`);
+  });
+  const k = p.lattice.vectors.length;
+  if (k < 1 || k > 2) throw new InputError(`lattice: ${k} vectors; give 1 (chain) or 2 (sheet)`);
+  if (p.links.length === 0) throw new InputError('links: the pattern links no rings, so nothing holds the weave together; pass rings through each other');
+}
