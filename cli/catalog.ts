@@ -1,10 +1,13 @@
 // `thickring catalog [--json]`: the named links that inflate and compare accept as SPEC.
 import type { Command } from 'commander';
 import { catalogEntries, MAX_CATALOG_RINGS, type CatalogEntry } from '../src/model/catalog.js';
+import { weaveEntries, type WeaveEntry } from '../src/model/weaves.js';
 import { emit, type Io } from './io.js';
 
 export interface CatalogListing {
   entries: CatalogEntry[];
+  /** Periodic patterns (weave:NAME): a cell of rings repeated along a chain or across a sheet. */
+  weaves: WeaveEntry[];
   maxRings: number;
   /** The frame the symmetries refer to. */
   axis: string;
@@ -18,6 +21,7 @@ export function register(program: Command, io: Io): void {
     .action((opts: { json?: boolean }) => {
       const listing: CatalogListing = {
         entries: catalogEntries(),
+        weaves: weaveEntries(),
         maxRings: MAX_CATALOG_RINGS,
         axis: 'symmetries are about the z axis through the origin; dihedral 2-fold axes include the x axis',
       };
@@ -37,6 +41,18 @@ export function formatCatalog(listing: CatalogListing): string {
         ? `  known optimum: tube = ${e.knownOptimum.formula} (tube / core radius ${Number(e.knownOptimum.tubeOverCore.toPrecision(6))}, dimensionless); ${e.knownOptimum.source}`
         : '  known optimum: none published',
     );
+    lines.push('');
+  }
+  lines.push('Weaves (periodic: a cell of rings repeated along a chain or across a sheet; inflate gives the minimum aspect ratio)', '');
+  for (const w of listing.weaves) {
+    lines.push(`${w.spec}  (${w.kind})`);
+    lines.push(`  ${w.description}`);
+    lines.push(`  cell: ${w.cell}; rings through each ring: ${w.through.join(', ')}`);
+    if (w.knownOptimum) lines.push(`  known minimum: ${w.knownOptimum.formula} (aspect ratio dimensionless); ${w.knownOptimum.source}`);
+    if (w.trade) {
+      const range = w.trade.low === w.trade.high ? `about ${w.trade.low}` : `${w.trade.low} to ${w.trade.high}`;
+      lines.push(`  trade rule of thumb: ${w.trade.what} at aspect ratio ${range} (dimensionless); ${w.trade.source}`);
+    }
     lines.push('');
   }
   lines.push(`Counts N, K run up to ${listing.maxRings}. Note: ${listing.axis}.`);

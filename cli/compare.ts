@@ -7,9 +7,12 @@ import { compare, type CompareProgress } from '../src/analyze/compare.js';
 import { DEFAULT_SWEEP_POINTS } from '../src/analyze/sweep.js';
 import { CAUTIONS } from '../src/fabricate/cautions.js';
 import { InputError } from '../src/model/errors.js';
+import { parseDensity, parseWireDiameter, weaveWeight } from '../src/model/periodicMaterials.js';
+import { isPeriodicArg } from '../src/model/periodicSpec.js';
 import type { CompareResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
+import { runPeriodicCompare, type PeriodicCompareResult } from '../src/optimize/periodicCompare.js';
 import { formatSummary } from '../reports/summary.js';
 import { writeFileAtomic } from './files.js';
 import { emit, type Io } from './io.js';
@@ -22,13 +25,28 @@ export function register(program: Command, io: Io): void {
   const cmd = program
     .command('compare')
     .description('Symmetric vs symmetry-broken optimum: how much thicker the rings get when the symmetry is given up.')
-    .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N) or layout JSON file')
+    .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N, weave:NAME) or layout JSON file; a weave compares one repeated cell with a 2-cell (2 x 2) supercell')
     .option('--json', 'print one JSON object (the compare result file) instead of text')
     .option('-o, --output <file>', 'write the compare result file (format thickring-result/1), e.g. for thickring report')
-    .option('--sweep-points <n>', `steps of the symmetry-breaking curve (default ${DEFAULT_SWEEP_POINTS}; 0 skips it)`);
+    .option('--sweep-points <n>', `steps of the symmetry-breaking curve (default ${DEFAULT_SWEEP_POINTS}; 0 skips it)`)
+    .option('--density <g/cm3|material>', 'weaves: wire density for the weight per length or area of the single-cell optimum (g/cm3 or steel, sterling-silver, ...)')
+    .option('--wire-diameter <mm>', 'weaves: wire diameter in mm that sets the scale of the weight');
   addSolveOptions(cmd).action(async (arg: string, raw: Record<string, unknown>) => {
     const options = readSolveOptions(raw);
     const sweepPoints = raw['sweepPoints'] === undefined ? undefined : sweepCount(raw['sweepPoints']);
+    if (isPeriodicArg(arg)) {
+      const run = await runWeaveCompare(arg, options, raw, io);
+      const output = raw['output'] as string | undefined;
+      if (output !== undefined) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
+      emit(io, raw['json'] === true, run.result, () => [weaveHeader(run.result), ...run.notes, '', formatCompare(run.result, output)].join('\n'));
+      if (run.result.status === 'failed' || run.result.status === 'infeasible') {
+        throw new Error(`no verified comparison (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
+      }
+      return;
+    }
+    for (const flag of ['density', 'wireDiameter']) {
+      if (raw[flag] !== undefined) throw new InputError(`--${flag === 'density' ? 'density' : 'wire-diameter'}: applies to weaves only (weave:NAME or a layout with a lattice section); leave it out for ${arg}`);
+    }
     const result = await runCompare(arg, options, sweepPoints, io);
     const output = raw['output'] as string | undefined;
     if (output !== undefined) writeFileAtomic(output, JSON.stringify(result, null, 2) + '\n');
@@ -58,6 +76,37 @@ export async function runCompare(arg: string, options: SolveCliOptions, sweepPoi
   } finally {
     progress.stop();
   }
+}
+
+/** Weaves: one repeated cell vs a supercell (src/optimize/periodicCompare.ts); the weight is the cell optimum's. */
+export async function runWeaveCompare(arg: string, options: SolveCliOptions, raw: Record<string, unknown>, io: Io): Promise<{ result: PeriodicCompareResult; notes: string[] }> {
+  if (raw['sweepPoints'] !== undefined) throw new InputError('--sweep-points: weaves have no symmetry-breaking curve (compare solves one cell and a supercell); leave it out');
+  const run = await runPeriodicCompare(arg, {
+    starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
+    ...(options.radii ? { radii: options.radii } : {}),
+    ...(options.symmetry !== undefined ? { symmetry: options.symmetry } : {}),
+  }, (phase, e) => io.err(`compare: ${phase} ${e.done}/${e.total}: tube ${Number.isFinite(e.tube) ? Number(e.tube.toPrecision(8)) : '-'} (layout units)`));
+  if (raw['density'] !== undefined) {
+    const wire = raw['wireDiameter'] === undefined ? undefined : parseWireDiameter(String(raw['wireDiameter']));
+    const s = run.result.symmetric;
+    if (s.tube > 0) {
+      const weight = weaveWeight({ rings: s.rings, lattice: s.lattice, units: s.units }, parseDensity(String(raw['density'])), wire);
+      run.result.symmetric = { ...s, periodic: { ...s.periodic, weight } };
+    }
+  } else if (raw['wireDiameter'] !== undefined) {
+    throw new InputError('--wire-diameter: only sets the scale of the weight; give --density as well (g/cm3 or a material name such as steel)');
+  }
+  return run;
+}
+
+function weaveHeader(r: PeriodicCompareResult): string {
+  const cell = r.symmetric, w = cell.periodic.weight;
+  const lines = [
+    `Weave ${r.spec} (${cell.periodic.kind}): minimum aspect ratio ${Number(cell.aspectRatio.toPrecision(10))} with one repeated cell, ` +
+      `${Number(r.broken.aspectRatio.toPrecision(10))} with a ${r.supercell.join(' x ')} supercell (inner diameter / wire diameter, dimensionless)`,
+  ];
+  if (w) lines.push(`Weight of the single-cell optimum: ${Number(w.grams.toPrecision(6))} g per ${w.per} at wire diameter ${Number(w.wireDiameterMm.toPrecision(6))} mm (${w.scale}); density ${w.density.gramsPerCm3} g/cm3, ${w.density.source}`);
+  return lines.join('\n');
 }
 
 export function formatCompare(result: CompareResult, output?: string): string {

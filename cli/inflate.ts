@@ -3,10 +3,15 @@
 // independent check of the answer.
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
+import { repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
+import { InputError } from '../src/model/errors.js';
+import { isPeriodicArg } from '../src/model/periodicSpec.js';
 import type { SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { runMultistart, type StartProgress } from '../src/optimize/multistart.js';
+import type { PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
+import { runPeriodicInflate } from '../src/optimize/periodicRun.js';
 import type { InflateProblem } from '../src/optimize/problem.js';
 import { writeFileAtomic } from './files.js';
 import { emit, type Io } from './io.js';
@@ -22,13 +27,13 @@ export function register(program: Command, io: Io): void {
   const cmd = program
     .command('inflate')
     .description('Thicken the rings as far as they allow: common tube radius, poses, contacts, certificate and bound.')
-    .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N; see thickring catalog) or layout JSON file')
+    .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N, weave:NAME; see thickring catalog) or layout JSON file (with a lattice section for a weave)')
     .option('--json', 'print one JSON object (the result file) instead of text')
     .option('-o, --output <file>', 'write the result file (format thickring-result/1)');
-  addSolveOptions(cmd).action(async (arg: string, raw: Record<string, unknown>) => {
+  addWeaveOptions(addSolveOptions(cmd)).action(async (arg: string, raw: Record<string, unknown>) => {
     const options = readSolveOptions(raw);
     const json = raw['json'] === true;
-    const run = await runInflate(arg, options, io);
+    const run = isPeriodicArg(arg) ? await runWeaveInflate(arg, options, raw, io) : await runInflate(arg, options, io, raw);
     const output = raw['output'] as string | undefined;
     if (output !== undefined) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
     emit(io, json, run.result, () => formatInflate(run, output));
@@ -42,7 +47,10 @@ export function register(program: Command, io: Io): void {
 }
 
 /** Resolve the spec, solve with multistart on the worker pool, and collect notes for the text. */
-export async function runInflate(arg: string, options: SolveCliOptions, io: Io): Promise<InflateRun> {
+export async function runInflate(arg: string, options: SolveCliOptions, io: Io, raw: Record<string, unknown> = {}): Promise<InflateRun> {
+  for (const flag of WEAVE_FLAGS) {
+    if (raw[flag.key] !== undefined) throw new InputError(`${flag.name}: applies to weaves only (weave:NAME or a layout with a lattice section); leave it out for ${arg}`);
+  }
   const resolved = resolveSpec(arg, options.radii ? { radii: options.radii } : {});
   const layout = resolved.layout;
   const symmetry = resolveSymmetry(options.symmetry, layout);
@@ -85,6 +93,62 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io):
   return { result, notes };
 }
 
+/** Options that only weaves take: --density, --wire-diameter, --repeats. */
+export function addWeaveOptions(cmd: Command): Command {
+  return cmd
+    .option('--density <g/cm3|material>', 'weaves: wire density for the weight per length or area, in g/cm3 or a material name (steel, sterling-silver, ...)')
+    .option('--wire-diameter <mm>', 'weaves: wire diameter in mm that sets the scale of the weight (default: the layout in mm, else a 1 mm wire)')
+    .option('--repeats <n>', 'weaves: write and print a block of n cells per lattice direction instead of the cell (for report, fabricate)');
+}
+
+const WEAVE_FLAGS = [
+  { key: 'density', name: '--density' }, { key: 'wireDiameter', name: '--wire-diameter' }, { key: 'repeats', name: '--repeats' },
+] as const;
+
+/** A weave: the periodic solve (src/optimize/periodicRun.ts), optionally expanded into a block of cells. */
+export async function runWeaveInflate(arg: string, options: SolveCliOptions, raw: Record<string, unknown>, io: Io, command = 'inflate'): Promise<InflateRun> {
+  const repeats = raw['repeats'] === undefined ? undefined : repeatCount(raw['repeats']);
+  const progress = progressReporter(io, options.starts);
+  try {
+    const run = await runPeriodicInflate(arg, {
+      starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
+      ...(options.radii ? { radii: options.radii } : {}),
+      ...(options.symmetry !== undefined ? { symmetry: options.symmetry } : {}),
+      ...(raw['density'] !== undefined ? { density: String(raw['density']) } : {}),
+      ...(raw['wireDiameter'] !== undefined ? { wireDiameter: String(raw['wireDiameter']) } : {}),
+      onProgress: progress.update,
+    }, command);
+    return { result: repeats === undefined ? run.result : repeatResult(run.result, repeats), notes: run.notes };
+  } finally {
+    progress.stop();
+  }
+}
+
+function repeatCount(v: unknown): number {
+  const text = String(v).trim();
+  if (!/^\d+$/.test(text)) throw new InputError(`--repeats: '${text}' must be a whole number of cells per lattice direction (for example --repeats 3)`);
+  return Number(text);
+}
+
+/** The weave lines of the text: lattice, the minimum aspect ratio, density of rings, weight. */
+function weaveLines(r: PeriodicSolveResult, u: string): string[] {
+  const p = r.periodic;
+  const lines = [`Weave: ${p.kind}, ${p.cellRings} rings per cell; minimum aspect ratio (inner diameter / wire diameter) ${num(r.aspectRatio)} (dimensionless)`];
+  r.lattice.vectors.forEach((v, k) => lines.push(`Lattice vector ${k + 1}: [${vec(v)}] (${u}), length ${num(Math.hypot(...v))} ${u}`));
+  if (p.kind === 'chain') lines.push(`Period ${num(p.periodLength!)} ${u}; ${num(p.ringsPerUnitLength!)} rings per ${u === 'layout units' ? 'layout unit' : u} of length`);
+  else lines.push(`Cell area ${num(p.cellArea!)} ${u}^2; ${num(p.ringsPerUnitArea!)} rings per square ${u === 'layout units' ? 'layout unit' : u}`);
+  const w = p.weight;
+  if (w) {
+    lines.push(
+      `Weight: ${num(w.grams)} g per ${w.per} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
+        `inner diameter ${num(w.innerDiameterMm)} mm (${w.scale}); density ${w.density.gramsPerCm3} g/cm3${w.density.material ? ` (${w.density.material})` : ''}, ${w.density.source}`,
+    );
+  }
+  const rep = (p as { repeats?: number[] }).repeats;
+  if (rep) lines.push(`Rings listed: a block of ${rep.join(' x ')} cells (--repeats); ring A[i] is ring A of cell i`);
+  return lines;
+}
+
 /** Human-readable result; every length carries its units, every ratio says dimensionless. */
 export function formatInflate(run: InflateRun, output?: string): string {
   const r = run.result;
@@ -97,6 +161,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   lines.push(`Tube radius: ${L(r.tube)} (wire diameter ${L(2 * r.tube)})`);
   lines.push(`Tube / smallest core radius: ${num(r.tubeOverCore)} (dimensionless)`);
   lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(r.aspectRatio)} (dimensionless)`);
+  if ('periodic' in r) lines.push(...weaveLines(r as PeriodicSolveResult, u));
   if (r.symmetry) lines.push(`Symmetry imposed: ${r.symmetry.type}:${r.symmetry.order} about axis [${r.symmetry.axis.join(', ')}] through [${r.symmetry.origin.join(', ')}]`);
   else lines.push('Symmetry imposed: none');
   if (r.bound) {

@@ -90,14 +90,19 @@ describe('solveInflate: published optima', () => {
     expect(Math.abs(bound.tube - 1 / 3)).toBeLessThan(1e-15);
   });
 
-  it('star of K rings through one ring (cyclic:K and free) attains the packing bound r_K R / (1 + r_K)', async () => {
+  it('star of K rings through one ring (cyclic:K, dihedral:K and free) attains the packing bound r_K R / (1 + r_K)', async () => {
     // Graham, Lubachevsky, Nurmela, Östergård, Discrete Math. 181 (1998): r_3 = 2√3 - 3, r_4 = √2 - 1.
     // Rings upright through the central disk cut it in disks of radius r, so the best packing is reachable.
     for (const [K, rK] of [[3, 2 * Math.sqrt(3) - 3], [4, Math.SQRT2 - 1]] as const) {
       const start = star(K);
       const expected = rK / (1 + rK);
-      for (const symmetry of [{ type: 'cyclic', order: K, axis: [0, 0, 1], origin: [0, 0, 0] } as Symmetry, null]) {
-        const out = await solve(`star:${K} ${symmetry ? 'cyclic' : 'free'}`, start, { symmetry });
+      const groups: (Symmetry | null)[] = [
+        { type: 'cyclic', order: K, axis: [0, 0, 1], origin: [0, 0, 0] },
+        { type: 'dihedral', order: K, axis: [0, 0, 1], origin: [0, 0, 0] },
+        null,
+      ];
+      for (const symmetry of groups) {
+        const out = await solve(`star:${K} ${symmetry?.type ?? 'free'}`, start, { symmetry });
         expect(Math.abs(out.tube - expected)).toBeLessThan(1e-9);
         expect(out.status).toBe('optimal');
         expectValid(out, start);

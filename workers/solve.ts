@@ -4,13 +4,16 @@
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/esm/node-adapter.mjs';
 import { parentPort } from 'node:worker_threads';
+import { isPeriodicProblem, type PeriodicProblem } from '../src/optimize/periodicProblem.js';
+import { solvePeriodic } from '../src/optimize/periodicSolve.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
 import { solveInflate } from '../src/optimize/solve.js';
 
 export type Algorithm = NonNullable<SolveOptions['algorithm']>;
 
 export interface WorkerTask {
-  problem: InflateProblem;
+  /** A finite arrangement, or a periodic one (a weave: it carries `lattice` and `links`). */
+  problem: InflateProblem | PeriodicProblem;
   options: Omit<SolveOptions, 'onIteration'>;
   /**
    * Test-only: algorithms for which this worker dies the way a WebAssembly abort kills it (an
@@ -28,7 +31,8 @@ const api = {
       });
       return new Promise<SolveOutcome>(() => {});
     }
-    return solveInflate(task.problem, { ...task.options, algorithm });
+    const options = { ...task.options, algorithm };
+    return isPeriodicProblem(task.problem) ? solvePeriodic(task.problem, options) : solveInflate(task.problem, options);
   },
 };
 

@@ -133,7 +133,7 @@ const FAMILIES: Record<CatalogFamily, { min: number; takesN: boolean }> = {
   torus: { min: 2, takesN: true },
 };
 
-const VALID = 'hopf, chain:N (N >= 2), necklace:N (N >= 3), star:K (K >= 2), torus:N (N >= 2)';
+const VALID = 'hopf, chain:N (N >= 2), necklace:N (N >= 3), star:K (K >= 2), torus:N (N >= 2), weave:NAME (weaves, see thickring catalog)';
 
 /** True when the text names a catalogue family (possibly with a bad N), so it is not a file path. */
 export function looksLikeCatalogSpec(text: string): boolean {

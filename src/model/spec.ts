@@ -127,7 +127,8 @@ function readLayout(path: string): Layout {
   }
   const layout = parseLayout(data, basename(path));
   if (layout.lattice) {
-    throw new InputError(`layout file '${path}' has a lattice (a periodic weave); inflate solves finite arrangements only: remove "lattice" and list the rings`);
+    // inflate and compare send weaves to the periodic path first (src/model/periodicSpec.ts); other callers cannot take them.
+    throw new InputError(`layout file '${path}' has a lattice (a periodic weave), which only thickring inflate and compare read: run one of them, or remove "lattice" and list the rings`);
   }
   return layout;
 }

@@ -7,6 +7,8 @@ import type { PairScan } from './scan.js';
 
 /** Points per ring sampled for near-continuum contacts. */
 export const SAMPLES_PER_RING = 16;
+/** Samples closer than this (relative to ring a's radius) to ring a's axis are left out. */
+const SAMPLE_AXIS_REL = 0.01;
 /** Samples with slack above this fraction of the pair's touching distance are left out. */
 const SAMPLE_SLACK_REL = 0.02;
 
@@ -38,6 +40,9 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
         const th = (2 * Math.PI * (k + 0.5)) / SAMPLES_PER_RING;
         const con = newConstraint('sample', a, b, 0, th, scan.c, nFree, true);
         const g = evaluate(con, chart, posed, true, opt.dep);
+        // Near ring a's axis the nearest point on a jumps (on the axis all of a is equally near): the
+        // sample's distance is not smooth there, so leave it out (it is only an extra, redundant bound).
+        if (axisDistance(posed, a, con.pb) < SAMPLE_AXIS_REL * posed.R[a]!) continue;
         if (Number.isFinite(g) && g - opt.t * scan.c <= sampleMargin) out.push(con);
       }
     }
@@ -64,26 +69,36 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
   return out;
 }
 
+/** Distance of point p from the axis of ring j. */
+function axisDistance(posed: Posed, j: number, p: ArrayLike<number>): number {
+  const o = 3 * j;
+  let dz = 0;
+  const d = [0, 1, 2].map((k) => p[k]! - posed.c[o + k]!);
+  for (let k = 0; k < 3; k++) dz += d[k]! * posed.n[o + k]!;
+  return Math.hypot(d[0]! - dz * posed.n[o]!, d[1]! - dz * posed.n[o + 1]!, d[2]! - dz * posed.n[o + 2]!);
+}
+
 /**
- * The active set for the polish and the certificate: constraints with slack <= tol. A pair with three or
- * more active samples touches along an arc (a continuum): it keeps its samples and drops its struts, whose
- * tracking is ill-conditioned there. Any other pair keeps its struts only.
+ * The active set for the polish and the certificate: constraints with slack <= tol. A continuum of closest
+ * pairs of two round circles is always a whole circle (the distance along a ring is analytic, so constant
+ * on an arc means constant everywhere: coaxial circles, or a circle on the other's tube), so a ring side
+ * touches along a continuum exactly when all its samples are active. Such a pair keeps those samples and
+ * drops its struts, whose tracking is ill-conditioned there; every other pair keeps its struts only.
  */
 export function activeSet(cons: readonly Constraint[], t: number, tol: number): Constraint[] {
   const active = cons.filter((k) => k.g - k.c * t <= tol);
-  const samplesPerPair = new Map<string, number>();
+  const perSide = new Map<string, number>();
   for (const k of active) {
     if (k.kind !== 'sample') continue;
-    const key = pairKey(k.a, k.b);
-    samplesPerPair.set(key, (samplesPerPair.get(key) ?? 0) + 1);
+    const key = `${k.a}>${k.b}`;
+    perSide.set(key, (perSide.get(key) ?? 0) + 1);
   }
+  // All samples of the side active (up to two may have been left out beside the other ring's axis, which
+  // a ring on the other's tube runs along where it passes through the other's centre).
+  const arcSide = (a: number, b: number): boolean => (perSide.get(`${a}>${b}`) ?? 0) >= SAMPLES_PER_RING - 2;
   return active.filter((k) => {
-    if (k.kind !== 'strut' && k.kind !== 'sample') return true;
-    const arc = (samplesPerPair.get(pairKey(k.a, k.b)) ?? 0) >= 3;
-    return k.kind === 'sample' ? arc : !arc;
+    if (k.kind === 'sample') return arcSide(k.a, k.b);
+    if (k.kind === 'strut') return !arcSide(k.a, k.b) && !arcSide(k.b, k.a);
+    return true;
   });
-}
-
-function pairKey(a: number, b: number): string {
-  return a < b ? `${a}:${b}` : `${b}:${a}`;
 }

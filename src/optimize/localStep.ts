@@ -11,7 +11,8 @@
 // best predicted gain, and its fixed points are exactly the KKT points (Σμ_k c_k = 1, Σμ_k G_k = 0).
 // Why this scaling: with y = z/√Δ, ψ = τ/√Δ the Hessian is the identity, which is SLSQP's starting
 // quasi-Newton matrix, so its first QP subproblem is already the exact step and it stops one iteration later
-// (no line-search trouble, which is what makes the WebAssembly build abort). nlopt-js LD_SLSQP is the main
+// with no line-search trouble (the start sits strictly inside: a start that already solves the QP made the
+// WebAssembly build abort). nlopt-js LD_SLSQP is the main
 // solver as the design asks; LD_MMA and LD_CCSAQ are the alternatives the pool retries with. HiGHS
 // (active-set QP) is the companion: used when an nlopt run fails or returns a non-finite or infeasible point.
 // Observed here: when NLopt fails, the WebAssembly build throws a JS exception ("Exception catching is

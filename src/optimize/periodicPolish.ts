@@ -18,6 +18,12 @@ export const PERIODIC_POLISH_TOL = 1e-13;
 const MAX_NEWTON = 30;
 /** Central-difference step for the Lagrangian Hessian, relative to the length scale. */
 const HESSIAN_STEP_REL = 1e-6;
+/**
+ * Singular values of the KKT matrix below this fraction of the largest are dropped: the Hessian block comes
+ * from differences with a 1e-6 step, so its rounding noise is ~1e-10 relative, and a family of optima (a
+ * connector free to spin about its contact axis) leaves exact null directions that noise must not fill.
+ */
+const SVD_CUTOFF = 1e-9;
 /** Balance residual of the non-negative forces (relative) accepted at the end of the polish. */
 const FORCE_BALANCE_TOL = 1e-9;
 
@@ -75,7 +81,7 @@ function newton(pc: PeriodicChart, active: PeriodicConstraint[], t0: number, lam
   for (; it < MAX_NEWTON && norm > PERIODIC_POLISH_TOL; it++) {
     const J = jacobian(pc, cons, z, lambda, L);
     if (J === null) return { ok: false, z, t, lambda, active: cons, message: 'a strut was lost while differencing' };
-    const step = leastSquares(J, F.map((v) => -v));
+    const step = leastSquares(J, F.map((v) => -v), SVD_CUTOFF);
     let alpha = 1, accepted = false;
     for (let ls = 0; ls < 30; ls++) {
       const zTry = new Float64Array(n), lTry = new Float64Array(m);

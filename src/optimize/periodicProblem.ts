@@ -1,5 +1,6 @@
 // The periodic inflation problem (weaves) and its outcome, shared by the solver, the worker pool and the CLI.
 import type { PeriodicLink } from '../model/periodic.js';
+import type { ResultContact } from '../model/result.js';
 import type { Lattice, Ring } from '../model/types.js';
 import type { SolveOutcome } from './problem.js';
 
@@ -18,9 +19,15 @@ export interface PeriodicProblem {
   links: PeriodicLink[];
 }
 
+/** A contact of ring a with the copy of ring b at `shift` (onB lies on that copy). */
+export interface PeriodicContact extends ResultContact {
+  shift: number[];
+}
+
 export interface PeriodicOutcome extends SolveOutcome {
   /** Lattice vectors at the optimum (layout units). */
   lattice: Lattice;
+  contacts: PeriodicContact[];
 }
 
 export function isPeriodicProblem(p: object): p is PeriodicProblem {

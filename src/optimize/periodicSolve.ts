@@ -19,7 +19,7 @@ import {
   evaluatePeriodic, newPeriodicConstraint, periodicTube, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
 } from './periodicConstraints.js';
 import { polishPeriodic } from './periodicPolish.js';
-import type { PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
+import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
 
 /** First proximal radius and its cap, and the cap of the step box, relative to the smallest core radius. */
@@ -124,7 +124,7 @@ export async function solvePeriodic(problem: PeriodicProblem, options: SolveOpti
     ` (${stopReason}${polished ? `: ${polished.message}` : ''}); tube ${state.t} (layout units)`;
   return {
     status, tube: state.t, rings: withTubes(state.rings, state.t, w), lattice: copyLattice(state.lattice),
-    iterations, history, contacts: fin.cert.contacts, certificate: fin.cert.certificate, message,
+    iterations, history, contacts: fin.contacts, certificate: fin.cert.certificate, message,
   };
 }
 
@@ -212,22 +212,33 @@ function tryPolish(state: State, ctx: Ctx): Polished | null {
 }
 
 /** First-order certificate at the final arrangement. */
-function assess(state: State, ctx: Ctx, polished: Polished | null): { cert: ReturnType<typeof certify> } {
+function assess(state: State, ctx: Ctx, polished: Polished | null): Assessed {
   const pc = buildPeriodicChart(state.rings, state.lattice);
   const t = state.t;
   const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * t);
   let violation = 0;
   for (const s of state.scans) violation = Math.max(violation, (t * s.c - s.distance) / t);
   const base = { nFree: pc.nFree, maxViolation: violation, activeTolLimit: Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!), polished: polished !== null };
-  let first: ReturnType<typeof certify> | null = null;
+  let first: Assessed | null = null;
   for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
     const active = all.filter((k) => k.g - k.c * t <= tol * t);
     if (active.length === 0) continue;
-    const cert = certify({ ...base, active, activeTol: tol });
-    if (cert.certificate.certified) return { cert };
-    first ??= cert;
+    const out = withShifts(certify({ ...base, active, activeTol: tol }), active);
+    if (out.cert.certificate.certified) return out;
+    first ??= out;
   }
-  return { cert: first ?? certify({ ...base, active: [], activeTol: 1 }) };
+  return first ?? { cert: certify({ ...base, active: [], activeTol: 1 }), contacts: [] };
+}
+
+interface Assessed {
+  cert: ReturnType<typeof certify>;
+  contacts: PeriodicContact[];
+}
+
+/** certify lists contacts in the order of the active struts: give each the shift of its image. */
+function withShifts(cert: ReturnType<typeof certify>, active: readonly PeriodicConstraint[]): Assessed {
+  const struts = active.filter((k) => k.kind === 'strut');
+  return { cert, contacts: cert.contacts.map((c, k) => ({ ...c, shift: struts[k]!.shift.slice() })) };
 }
 
 /** Move every ring by up to size·R (centre, layout units; tilt, radians) and every lattice vector by up to size·R. */

@@ -4,17 +4,9 @@ import type { RingOrbits } from '../model/symmetry.js';
 import type { Ring } from '../model/types.js';
 import { buildChart, posedAt, ringsOf } from './chart.js';
 
-/** mulberry32: a small 32-bit generator, uniform in [0, 1). */
-export function seededRandom(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let x = s;
-    x = Math.imul(x ^ (x >>> 15), x | 1);
-    x ^= x + Math.imul(x ^ (x >>> 7), x | 61);
-    return ((x ^ (x >>> 14)) >>> 0) / 4294967296;
-  };
-}
+import { seededRandom } from '../model/random.js';
+
+export { seededRandom };
 
 /**
  * Move every orbit representative by up to `size`·R in each allowed direction (centre in layout units,

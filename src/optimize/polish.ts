@@ -9,14 +9,17 @@
 import { Matrix } from 'ml-matrix';
 import { posedAt, type Chart } from './chart.js';
 import { evaluate, type Constraint, type DepartureSpec } from './constraints.js';
-import { leastSquares } from './linalg.js';
+import { leastSquares, leastSquaresRegularized } from './linalg.js';
 import { nnls } from './nnls.js';
 
 /** KKT residual (scaled to the length scale) at which the polish stops. */
 export const POLISH_RESIDUAL_TOL = 1e-13;
-const POLISH_MAX_ITERATIONS = 30;
+/** Newton converges quadratically from a good start; more steps than this mean a wrong active set. */
+const POLISH_MAX_ITERATIONS = 12;
 /** Central-difference step for the Lagrangian Hessian, relative to the length scale. */
 const HESSIAN_STEP_REL = 1e-6;
+/** Step fractions tried along the Newton step. */
+const HALVINGS = Array.from({ length: 12 }, (_, k) => 2 ** -k);
 /** Balance residual of the non-negative forces (relative) accepted at the end of the polish. */
 const FORCE_BALANCE_TOL = 1e-9;
 
@@ -76,30 +79,35 @@ function newton(
   for (; it < POLISH_MAX_ITERATIONS && norm > POLISH_RESIDUAL_TOL; it++) {
     const J = kktJacobian(chart, cons, z, lambda, L, dep);
     if (J === null) return failed('a strut was lost while differencing', cons, z, t, lambda);
-    const step = leastSquares(J, F.map((v) => -v));
-    // Damped: halve until the residual drops.
-    let alpha = 1, accepted = false;
-    for (let ls = 0; ls < 30; ls++) {
-      const zTry = new Float64Array(n), lTry = new Float64Array(m);
-      for (let i = 0; i < n; i++) zTry[i] = z[i]! + alpha * step[i]! * L;
-      const tTry = t + alpha * step[n]! * L;
-      for (let k = 0; k < m; k++) lTry[k] = lambda[k]! + alpha * step[n + 1 + k]!;
-      const snapshot = cons.map((k) => [k.ta, k.tb] as const);
-      const FTry = kktResidual(chart, cons, zTry, tTry, lTry, L, dep, true);
-      if (FTry !== null && vecNorm(FTry) < norm * (1 - 1e-4 * alpha)) {
-        z = zTry;
-        t = tTry;
-        lambda = lTry;
-        F = FTry;
-        norm = vecNorm(F);
-        accepted = true;
-        break;
+    const minusF = F.map((v) => -v);
+    // Newton (near minimum norm, by cheap regularised normal equations; by the SVD when that step does
+    // not help, as happens near the end at degenerate optima), damped by halving until the residual drops.
+    let accepted = false;
+    for (const solver of [leastSquaresRegularized, leastSquares]) {
+      const step = solver(J, minusF);
+      const alphas = HALVINGS;
+      for (const alpha of alphas) {
+        const zTry = new Float64Array(n), lTry = new Float64Array(m);
+        for (let i = 0; i < n; i++) zTry[i] = z[i]! + alpha * step[i]! * L;
+        const tTry = t + alpha * step[n]! * L;
+        for (let k = 0; k < m; k++) lTry[k] = lambda[k]! + alpha * step[n + 1 + k]!;
+        const snapshot = cons.map((k) => [k.ta, k.tb] as const);
+        const FTry = kktResidual(chart, cons, zTry, tTry, lTry, L, dep, true);
+        if (FTry !== null && vecNorm(FTry) < norm * (1 - 1e-4 * alpha)) {
+          z = zTry;
+          t = tTry;
+          lambda = lTry;
+          F = FTry;
+          norm = vecNorm(F);
+          accepted = true;
+          break;
+        }
+        cons.forEach((k, i) => {
+          k.ta = snapshot[i]![0];
+          k.tb = snapshot[i]![1];
+        });
       }
-      cons.forEach((k, i) => {
-        k.ta = snapshot[i]![0];
-        k.tb = snapshot[i]![1];
-      });
-      alpha *= 0.5;
+      if (accepted) break;
     }
     if (!accepted) break;
   }

@@ -1,12 +1,16 @@
 // Inflate: maximise the common tube over ring poses (see problem.ts).
 //
 // Outer loop (a trust-region method on the max–min problem): at the current poses the kernel finds every
-// strut of every pair; struts and sampled near-contacts are linearised in a gauge-free chart and a proximal
-// QP (localStep.ts, nlopt-js) proposes a step. The step is judged on the exact kernel: the true tube of the
-// new poses (min over pairs of distance / (w_a + w_b)) against the predicted gain, with the linking matrix
-// re-checked; the trust radius shrinks on rejection and grows on success. Once the gain per step is small,
-// Newton on the KKT system of the active set (polish.ts) finishes to ~1e-13, accepted only if the kernel
-// agrees; non-negative strut forces (certificate.ts) then certify a Kuhn–Tucker point.
+// strut of every pair; struts and sampled near-contacts are linearised in a gauge-free chart (chart.ts) and a
+// proximal QP (localStep.ts: nlopt-js SLSQP, HiGHS as companion) proposes a step. The step is judged on the
+// exact kernel: the true tube of the new poses (min over pairs of distance / (w_a + w_b)) against the
+// predicted gain, with the linking matrix (and any departure bound) re-checked; the radius shrinks on
+// rejection and grows on success, so the tube never decreases. Once the predicted gain is small, Newton on
+// the KKT system of the active set (polish.ts) finishes to ~1e-13, accepted only if the kernel agrees.
+// Non-negative strut forces (certificate.ts) certify a Kuhn–Tucker point, and the curvature of the
+// Lagrangian along the contacts (secondOrder.ts) tells a maximum from a saddle: a symmetric arrangement is
+// often a saddle among all arrangements, and the loop steps off it along the ascent direction (at most
+// MAX_ESCAPES times) and climbs on.
 import type { Certificate } from '../model/result.js';
 import { InputError } from '../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../model/symmetry.js';
@@ -121,7 +125,6 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
     }
     failures = 0;
     const predicted = step.tau;
-    console.error('it', state.iterations, state.t, predicted.toExponential(2), delta.toExponential(2), cons.length);
     if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
       // The local model promises little more: finish by Newton, then check the second-order condition.
       const p = tryPolish(state, ctx);
@@ -258,7 +261,6 @@ function tryPolish(state: LoopState, ctx: Context): Polished | null {
     lastSet = key;
     const lambda0 = certify({ active, nFree: chart.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false }).lambda;
     const r = polish(chart, active, state.t, lambda0, ctx.scale, ctx.dep);
-    console.error('polish', tol, active.length, active.map(k=>k.kind[0]+k.a+k.b).join(','), r.ok, r.message, r.t);
     if (!r.ok) continue;
     const rings = ringsOf(chart, posedAt(chart, r.z));
     const scans = scanPairs(posedOf(rings, ctx.orbits), ctx.pairs, ctx.w);
