@@ -3,7 +3,7 @@
 // independent check of the answer.
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
-import { repeatResult } from '../src/fabricate/repeat.js';
+import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
 import { isPeriodicArg } from '../src/model/periodicSpec.js';
@@ -126,8 +126,11 @@ export async function runWeaveInflate(arg: string, options: SolveCliOptions, raw
 
 function repeatCount(v: unknown): number {
   const text = String(v).trim();
-  if (!/^\d+$/.test(text)) throw new InputError(`--repeats: '${text}' must be a whole number of cells per lattice direction (for example --repeats 3)`);
-  return Number(text);
+  const n = Number(text);
+  if (!/^\d+$/.test(text) || n < 1 || n > MAX_REPEATS) {
+    throw new InputError(`--repeats: ${text} must be a whole number from 1 to ${MAX_REPEATS} (cells per lattice direction, for example --repeats 3)`);
+  }
+  return n;
 }
 
 /** The weave lines of the text: lattice, the minimum aspect ratio, density of rings, weight. */

@@ -9,7 +9,7 @@
 import { InputError } from '../model/errors.js';
 import type { Certificate } from '../model/result.js';
 import { periodicLinks, sameLinks } from '../model/periodic.js';
-import { ringPairs } from '../model/ringPairs.js';
+import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
 import { certify } from './certificate.js';
 import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
@@ -157,6 +157,8 @@ function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
   const pc = buildPeriodicChart(rings, lattice);
   const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
   const margin = 2 * Math.max(...ctx.w) * ctx.tMax + SCAN_MARGIN_REL * ctx.scale;
+  // A step that makes the lattice vectors nearly parallel would need thousands of copies: reject it.
+  if (latticeReach({ rings, lattice }, margin).some((k) => k > MAX_LATTICE_REACH)) return { rings, lattice, scans: [], t: -Infinity };
   const pairs: PeriodicPair[] = ringPairs({ rings, lattice }, margin).map((p) => ({ a: p.i, b: p.j, shift: p.shift }));
   const scans = scanPeriodic(pp, pairs, ctx.w);
   return { rings, lattice, scans, t: periodicTube(scans, ctx.R, ctx.w) };
