@@ -152,6 +152,9 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   return lines;
 }
 
+/** Relative gap to the packing bound below which the bound counts as attained (rounding of a 1e-9 solve). */
+const BOUND_ATTAINED = 1e-9;
+
 /** Human-readable result; every length carries its units, every ratio says dimensionless. */
 export function formatInflate(run: InflateRun, output?: string): string {
   const r = run.result;
@@ -173,6 +176,10 @@ export function formatInflate(run: InflateRun, output?: string): string {
       `Upper bound (circle packing): ${L(b.tube)}; ring ${r.rings[b.ring]?.name ?? b.ring} has ${b.through} ring${b.through === 1 ? '' : 's'} through it; ` +
         `gap (bound - tube) / bound = ${sci(b.gap)} (dimensionless)`,
     );
+    // The bound holds for every arrangement with this linking pattern, so attaining it proves global optimality.
+    if (r.verification.ok && b.gap <= BOUND_ATTAINED) {
+      lines.push('  The bound is attained: no arrangement of these rings with this linking can have a thicker tube (global optimum).');
+    }
   }
   const c = r.certificate;
   lines.push(
