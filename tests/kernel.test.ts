@@ -199,7 +199,8 @@ describe('randomised comparison with the brute-force reference (dense sampling +
       // Every kernel contact is a genuine local minimum with the right length and a foot point on B.
       for (const c of res.contacts) {
         expect(dist3(c.onB, b.center)).toBeCloseTo(b.radius, 10);
-        expect(c.distance).toBeCloseTo(dist3(c.onA, c.onB), 12);
+        // The foot point on B is ill-conditioned near B's axis (error ~ eps L / rho), the distance is not.
+        expect(c.distance).toBeCloseTo(dist3(c.onA, c.onB), 10);
         const s = refAngle(a, c.onA);
         const f0 = refF(a, b, s);
         expect(Math.sqrt(f0)).toBeCloseTo(c.distance, 10);

@@ -125,7 +125,7 @@ const PP2 = new Float64Array(5);
 const T1 = new Float64Array(9);
 const T2 = new Float64Array(9);
 const G = new Float64Array(9);
-const EV = new Float64Array(3);
+const EV = new Float64Array(4);
 const GLO = new Float64Array(INITIAL_INTERVALS + 1);
 const SAMPLE_S = new Float64Array(NEAR_CONTINUUM_SAMPLES + 160);
 const STACK = new Float64Array(6 * 512);
@@ -232,9 +232,9 @@ export function circleContacts(
 
   // Normalise g so tolerances are relative.
   const inv = 1 / gNorm;
-  let L3 = 0;
+  let L4 = 0;
   for (let i = 0; i < 9; i++) G[i]! *= inv;
-  for (let k = 1; k <= 4; k++) L3 += k * k * k * Math.hypot(G[2 * k - 1]!, G[2 * k]!);
+  for (let k = 1; k <= 4; k++) L4 += k * k * k * k * Math.hypot(G[2 * k - 1]!, G[2 * k]!);
   // Grid values of g (shared endpoints of the initial intervals).
   const g0 = G[0]!, g1 = G[1]!, g2 = G[2]!, g3 = G[3]!, g4 = G[4]!, g5 = G[5]!, g6 = G[6]!, g7 = G[7]!, g8 = G[8]!;
   for (let i = 0; i <= INITIAL_INTERVALS; i++) {
@@ -245,7 +245,7 @@ export function circleContacts(
   const relative = gNorm / gScale;
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
   lastCertified = true;
-  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L3, (2 * EPS) / relative, H_NOISE * L * L * L, relative < WELL_CONDITIONED_REL, out);
+  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L4, (2 * EPS) / relative, H_NOISE * L * L * L, relative < WELL_CONDITIONED_REL, out);
   if (count < 0) {
     lastCertified = false;
     count = sampleMinima(out);
@@ -374,10 +374,10 @@ export function pointCircleDistance(p: ArrayLike<number>, c: ArrayLike<number>, 
 
 /**
  * Certified isolation of the roots of the normalised degree-4 trig polynomial G on [0, 2π), keeping only
- * those that are local minima of f. Third-order Taylor bounds about each interval's midpoint m (half-width r),
- * with L3 >= max |g'''| and the rounding level `noise` of G:
- *   exclusion   |g(m)| - |g'(m)| r - |g''(m)| r^2/2 - L3 r^3/6 > noise  (no root),
- *   uniqueness  |g'(m)| - |g''(m)| r - L3 r^2/2 > 0                     (g monotone: root iff sign change).
+ * those that are local minima of f. Fourth-order Taylor bounds about each interval's midpoint m (half-width r),
+ * with L4 = sum k^4 |c_k| >= max |g''''| and the rounding level `noise` of G:
+ *   exclusion   |g(m)| - |g'(m)| r - |g''(m)| r^2/2 - |g'''(m)| r^3/6 - L4 r^4/24 > noise  (no root),
+ *   uniqueness  |g'(m)| - |g''(m)| r - |g'''(m)| r^2/2 - L4 r^3/6 > 0   (g monotone: root iff sign change).
  * h is continuous and vanishes only at roots of g (including A's crossings of B's axis, where rho = w' = 0),
  * so across an interval holding exactly one root, h going from - to + means that root is a local minimum of f;
  * + to - is a maximum (or an axis cusp) and no sign change is a root of the spurious factor. Symmetric
@@ -386,23 +386,32 @@ export function pointCircleDistance(p: ArrayLike<number>, c: ArrayLike<number>, 
  * than SWITCH_WIDTH would differ in depth by ~SWITCH_WIDTH^3 (relative) and are reported once.
  * Child midpoints are rotations of the parent's (cos, sin) from per-level tables: no trig calls.
  */
-function isolateMinima(L3: number, noise: number, hNoise: number, polishOnH: boolean, out: Float64Array): number {
+function isolateMinima(L4: number, noise: number, hNoise: number, polishOnH: boolean, out: Float64Array): number {
   let count = 0;
   let top = 0;
   for (let i = INITIAL_INTERVALS - 1; i >= 0; i--) {
     STACK[top++] = (2 * i + 1) * H0; STACK[top++] = 0; STACK[top++] = GLO[i]!; STACK[top++] = GLO[i + 1]!;
     STACK[top++] = GRID_C[2 * i + 1]!; STACK[top++] = GRID_S[2 * i + 1]!;
   }
+  const g0 = G[0]!, g1 = G[1]!, g2 = G[2]!, g3 = G[3]!, g4 = G[4]!, g5 = G[5]!, g6 = G[6]!, g7 = G[7]!, g8 = G[8]!;
   let visits = 0;
   while (top > 0) {
     const sm = STACK[--top]!, cm = STACK[--top]!, ghi = STACK[--top]!, glo = STACK[--top]!;
     const level = STACK[--top]!, m = STACK[--top]!;
     const r = HALF_WIDTH[level]!;
-    evalTrig4(G, cm, sm, EV);
-    const gm = EV[0]!, dgm = Math.abs(EV[1]!), ddgm = Math.abs(EV[2]!);
+    // g and its first three derivatives at m (evalTrig4 inlined: this loop is the kernel's hot spot).
+    const c2 = cm * cm - sm * sm, s2 = 2 * sm * cm;
+    const c3 = c2 * cm - s2 * sm, s3 = s2 * cm + c2 * sm;
+    const c4 = c2 * c2 - s2 * s2, s4 = 2 * s2 * c2;
+    const a1 = g1 * cm + g2 * sm, a2 = g3 * c2 + g4 * s2, a3 = g5 * c3 + g6 * s3, a4 = g7 * c4 + g8 * s4;
+    const b1 = g2 * cm - g1 * sm, b2 = g4 * c2 - g3 * s2, b3 = g6 * c3 - g5 * s3, b4 = g8 * c4 - g7 * s4;
+    const gm = g0 + a1 + a2 + a3 + a4;
+    const dgm = Math.abs(b1 + 2 * b2 + 3 * b3 + 4 * b4);
+    const ddgm = Math.abs(a1 + 4 * a2 + 9 * a3 + 16 * a4);
+    const d3gm = Math.abs(b1 + 8 * b2 + 27 * b3 + 64 * b4);
     visits++;
-    if (Math.abs(gm) - r * (dgm + r * (0.5 * ddgm + (r * L3) / 6)) > noise) continue;
-    const unique = dgm - r * (ddgm + 0.5 * L3 * r) > 0;
+    if (Math.abs(gm) - r * (dgm + r * (0.5 * ddgm + r * (d3gm / 6 + (r * L4) / 24))) > noise) continue;
+    const unique = dgm - r * (ddgm + r * (0.5 * d3gm + (r * L4) / 6)) > 0;
     // End values within the rounding level cannot prove the absence of a sign change: ask h.
     const clear = Math.abs(glo) > noise && Math.abs(ghi) > noise;
     if (unique && clear && glo * ghi > 0) continue;

@@ -46,18 +46,18 @@ function addTerm(out: Float64Array, k: number, c: number, s: number): void {
   }
 }
 
-/** Value and first two derivatives of a degree-4 trig polynomial given cos s, sin s (angle addition). */
+/** Value and first three derivatives of a degree-4 trig polynomial given cos s, sin s (angle addition). */
 export function evalTrig4(g: ArrayLike<number>, c1: number, s1: number, out: Float64Array): void {
   const c2 = c1 * c1 - s1 * s1, s2 = 2 * s1 * c1;
   const c3 = c2 * c1 - s2 * s1, s3 = s2 * c1 + c2 * s1;
   const c4 = c2 * c2 - s2 * s2, s4 = 2 * s2 * c2;
   const a1 = g[1]! * c1 + g[2]! * s1, a2 = g[3]! * c2 + g[4]! * s2;
   const a3 = g[5]! * c3 + g[6]! * s3, a4 = g[7]! * c4 + g[8]! * s4;
+  // d/ds of (a cos ks + b sin ks) is k (b cos ks - a sin ks).
+  const b1 = g[2]! * c1 - g[1]! * s1, b2 = g[4]! * c2 - g[3]! * s2;
+  const b3 = g[6]! * c3 - g[5]! * s3, b4 = g[8]! * c4 - g[7]! * s4;
   out[0] = g[0]! + a1 + a2 + a3 + a4;
-  out[1] =
-    -g[1]! * s1 + g[2]! * c1 +
-    2 * (-g[3]! * s2 + g[4]! * c2) +
-    3 * (-g[5]! * s3 + g[6]! * c3) +
-    4 * (-g[7]! * s4 + g[8]! * c4);
+  out[1] = b1 + 2 * b2 + 3 * b3 + 4 * b4;
   out[2] = -(a1 + 4 * a2 + 9 * a3 + 16 * a4);
+  out[3] = -(b1 + 8 * b2 + 27 * b3 + 64 * b4);
 }
