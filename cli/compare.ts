@@ -81,20 +81,21 @@ export async function runCompare(arg: string, options: SolveCliOptions, sweepPoi
 /** Weaves: one repeated cell vs a supercell (src/optimize/periodicCompare.ts); the weight is the cell optimum's. */
 export async function runWeaveCompare(arg: string, options: SolveCliOptions, raw: Record<string, unknown>, io: Io): Promise<{ result: PeriodicCompareResult; notes: string[] }> {
   if (raw['sweepPoints'] !== undefined) throw new InputError('--sweep-points: weaves have no symmetry-breaking curve (compare solves one cell and a supercell); leave it out');
+  // Bad --density or --wire-diameter is reported before any solve.
+  const density = raw['density'] === undefined ? null : parseDensity(String(raw['density']));
+  const wire = raw['wireDiameter'] === undefined ? undefined : parseWireDiameter(String(raw['wireDiameter']));
+  if (wire !== undefined && density === null) {
+    throw new InputError('--wire-diameter: only sets the scale of the weight; give --density as well (g/cm3 or a material name such as steel)');
+  }
   const run = await runPeriodicCompare(arg, {
     starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
     ...(options.radii ? { radii: options.radii } : {}),
     ...(options.symmetry !== undefined ? { symmetry: options.symmetry } : {}),
   }, (phase, e) => io.err(`compare: ${phase} ${e.done}/${e.total}: tube ${Number.isFinite(e.tube) ? Number(e.tube.toPrecision(8)) : '-'} (layout units)`));
-  if (raw['density'] !== undefined) {
-    const wire = raw['wireDiameter'] === undefined ? undefined : parseWireDiameter(String(raw['wireDiameter']));
-    const s = run.result.symmetric;
-    if (s.tube > 0) {
-      const weight = weaveWeight({ rings: s.rings, lattice: s.lattice, units: s.units }, parseDensity(String(raw['density'])), wire);
-      run.result.symmetric = { ...s, periodic: { ...s.periodic, weight } };
-    }
-  } else if (raw['wireDiameter'] !== undefined) {
-    throw new InputError('--wire-diameter: only sets the scale of the weight; give --density as well (g/cm3 or a material name such as steel)');
+  const s = run.result.symmetric;
+  if (density && s.tube > 0) {
+    const weight = weaveWeight({ rings: s.rings, lattice: s.lattice, units: s.units }, density, wire);
+    run.result.symmetric = { ...s, periodic: { ...s.periodic, weight } };
   }
   return run;
 }

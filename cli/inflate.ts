@@ -149,11 +149,18 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   }
   const rep = (p as { repeats?: number[] }).repeats;
   if (rep) lines.push(`Rings listed: a block of ${rep.join(' x ')} cells (--repeats); ring A[i] is ring A of cell i`);
+  else if (p.contactShifts.some((s) => s.some((x) => x !== 0))) lines.push('Contacts with B[s] touch the copy of ring B shifted by s lattice vectors');
   return lines;
 }
 
 /** Relative gap to the packing bound below which the bound counts as attained (rounding of a 1e-9 solve). */
 const BOUND_ATTAINED = 1e-9;
+
+/** Weaves: the lattice shift of the copy of ring b a contact lies on, e.g. "[-1,0]" (none in the cell). */
+function copyLabel(r: SolveResult, k: number): string {
+  const shift = (r as Partial<PeriodicSolveResult>).periodic?.contactShifts[k];
+  return shift && shift.some((s) => s !== 0) ? `[${shift.join(',')}]` : '';
+}
 
 /** Human-readable result; every length carries its units, every ratio says dimensionless. */
 export function formatInflate(run: InflateRun, output?: string): string {
@@ -205,8 +212,8 @@ export function formatInflate(run: InflateRun, output?: string): string {
     lines.push('Contacts (active struts; forces dimensionless, summing to 1)');
     lines.push(table(
       ['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''],
-      r.contacts.map((x) => [
-        `${r.rings[x.a]?.name ?? x.a}-${r.rings[x.b]?.name ?? x.b}`,
+      r.contacts.map((x, k) => [
+        `${r.rings[x.a]?.name ?? x.a}-${r.rings[x.b]?.name ?? x.b}${copyLabel(r, k)}`,
         vec(x.onA, scale), vec(x.onB, scale), num(x.distance), num(x.force), x.continuum ? 'continuum representative' : '',
       ]),
     ));

@@ -21,3 +21,6 @@ export { verifyConfiguration } from './analyze/verify.js';
 export { compare } from './analyze/compare.js';
 export { symmetryBreakingSweep } from './analyze/sweep.js';
 export { analyzePlay, type PlayReport } from './analyze/play.js';
+export { runPeriodicInflate } from './optimize/periodicRun.js';
+export { runPeriodicMultistart } from './optimize/periodicMultistart.js';
+export { weaveEntries } from './model/weaves.js';

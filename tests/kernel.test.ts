@@ -124,6 +124,17 @@ describe('closed forms (Eberly, "Distance to Circles in 3D"; references.md)', ()
     }
   });
 
+  it('a meridian circle of the other ring\'s tube gives R2 from both sides (regression: flat high-order minimum)', () => {
+    // B (radius R2) centred on A's core, in the plane normal to A's tangent there: every point of B is at
+    // distance R2 from A's core (tube cross-section, hand derivation). Seen from A, the nearest point is where A
+    // runs along B's axis: f - R2^2 ~ R1 (R1 - R2) s^2 while h vanishes to third order.
+    for (const [R1, R2] of [[1.5, 1], [3, 0.7], [2, 1.9]]) {
+      const a = circle([0, 0, 0], [0, 0, 1], R1), b = circle([R1, 0, 0], [0, 1, 0], R2);
+      expect(ringDistance(a, b).distance).toBeCloseTo(R2, 13);
+      expect(ringDistance(b, a).distance).toBeCloseTo(R2, 13);
+    }
+  });
+
   it('point–circle distance matches d^2 = (n.Δ)^2 + (|Δ - (n.Δ)n| - r)^2 (Eberly) via the plain parametrisation', () => {
     const r = rng(4);
     for (let i = 0; i < 200; i++) {

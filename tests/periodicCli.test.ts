@@ -82,6 +82,9 @@ describe('thickring inflate on weaves', () => {
       [['inflate', 'weave:2-in-1', '--symmetry', 'cyclic:2'], /point symmetries of weaves are not imposed/],
       [['inflate', 'weave:2-in-1', '--repeats', '0'], /--repeats: 0 must be a whole number from 1/],
       [['inflate', 'hopf', '--density', 'steel'], /--density: applies to weaves only/],
+      [['compare', 'weave:2-in-1', '--density', '-3'], /--density: '-3'/],
+      [['compare', 'weave:2-in-1', '--sweep-points', '3'], /--sweep-points: weaves have no symmetry-breaking curve/],
+      [['compare', 'weave:2-in-1', '--symmetry', 'dihedral:2'], /point symmetries of weaves are not imposed/],
     ];
     for (const [args, message] of cases) {
       const { code, io } = await run(args);

@@ -245,7 +245,8 @@ export function circleContacts(
   const relative = gNorm / gScale;
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
   lastCertified = true;
-  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L4, (2 * EPS) / relative, H_NOISE * L * L * L, relative < WELL_CONDITIONED_REL, out);
+  HSCALE[0] = L * L * L;
+  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L4, (2 * EPS) / relative, H_NOISE * HSCALE[0]!, relative < WELL_CONDITIONED_REL, out);
   if (count < 0) {
     lastCertified = false;
     count = sampleMinima(out);
@@ -426,11 +427,20 @@ function isolateMinima(L4: number, noise: number, hNoise: number, polishOnH: boo
       // are computed by different rotations), so exactly one of the two intervals claims it.
       const sLo = hLo < -hNoise ? -1 : hLo > hNoise ? 1 : 0;
       const sHi = hHi < -hNoise ? -1 : hHi > hNoise ? 1 : 0;
-      if (sLo < 0 && sHi >= 0 && count < MAX_CONTACTS) {
-        const root = sHi === 0 ? m + r
-          : unique && clear && glo * ghi < 0 && !polishOnH ? refine(m - r, m + r, glo, ghi)
+      if (sLo < 0 && sHi > 0 && count < MAX_CONTACTS) {
+        const root = unique && clear && glo * ghi < 0 && !polishOnH ? refine(m - r, m + r, glo, ghi)
           : refineH(m - r, m + r, hLo, hHi);
         writeContact(out, count++, wrapAngle(root));
+      } else if (sLo < 0 && sHi === 0 && count < MAX_CONTACTS) {
+        // h falls into its rounding level here: either a root on the shared end, or a flat high-order minimum
+        // (A running along B's axis) somewhere inside the dead zone. Polish on f itself over a window.
+        const root = goldenOnF(m + r - FLAT_WINDOW, m + r + FLAT_WINDOW);
+        if (!alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
+      } else if (floor && (sLo === 0 || sHi === 0) && count < MAX_CONTACTS) {
+        // h vanishes to high order here (A runs along B's axis, e.g. B a meridian of A's tube): f is smooth
+        // but its slope is below rounding, so compare f itself and polish by golden section.
+        const root = flatMinimum(m, r, out, count);
+        if (root === root) writeContact(out, count++, wrapAngle(root));
       }
       continue;
     }
@@ -443,6 +453,52 @@ function isolateMinima(L4: number, noise: number, hNoise: number, polishOnH: boo
     STACK[top++] = cm * hc + sm * hs; STACK[top++] = sm * hc - cm * hs;
   }
   return count;
+}
+
+/**
+ * A local minimum of f within [m - 2r, m + 2r] found by golden section on f, or NaN when the smallest of
+ * f(m - r), f(m), f(m + r) is not interior (f is monotone here) or the minimum is already listed.
+ */
+function flatMinimum(m: number, r: number, out: Float64Array, count: number): number {
+  const fl = fAt(m - r), fm = fAt(m), fh = fAt(m + r);
+  if (!(fm <= fl && fm <= fh)) return NaN;
+  const x = goldenOnF(m - r, m + r);
+  return alreadyListed(out, count, x, 4 * r) ? NaN : x;
+}
+
+/** Whether a contact within `width` radians of angle x is already in out[0 .. count). */
+function alreadyListed(out: Float64Array, count: number, x: number, width: number): boolean {
+  for (let k = 0; k < count; k++) {
+    const d = Math.abs(wrapAngle(out[k * CONTACT_STRIDE]!) - wrapAngle(x));
+    if (Math.min(d, TWO_PI - d) < width) return true;
+  }
+  return false;
+}
+
+/**
+ * Minimum of f on [lo, hi] by golden-section search (f unimodal there), then bracketed on h when h has a
+ * readable sign change close by (golden section alone locates a simple minimum only to ~sqrt(eps)).
+ */
+function goldenOnF(lo: number, hi: number): number {
+  const x = goldenSection(lo, hi);
+  const hl = hAt(x - POLISH_STEP), hh = hAt(x + POLISH_STEP);
+  const hn = H_NOISE * HSCALE[0]!;
+  return hl < -hn && hh > hn ? refineH(x - POLISH_STEP, x + POLISH_STEP, hl, hh) : x;
+}
+
+function goldenSection(lo: number, hi: number): number {
+  let x1 = hi - 0.6180339887498949 * (hi - lo), x2 = lo + 0.6180339887498949 * (hi - lo);
+  let f1 = fAt(x1), f2 = fAt(x2);
+  for (let it = 0; it < 80 && hi - lo > ROOT_ANGLE_TOL; it++) {
+    if (f1 < f2) {
+      hi = x2; x2 = x1; f2 = f1;
+      x1 = hi - 0.6180339887498949 * (hi - lo); f1 = fAt(x1);
+    } else {
+      lo = x1; x1 = x2; f1 = f2;
+      x2 = lo + 0.6180339887498949 * (hi - lo); f2 = fAt(x2);
+    }
+  }
+  return 0.5 * (lo + hi);
 }
 
 /** Root of h (from the geometry) in [lo, hi] given h(lo) < 0 <= h(hi): Illinois-modified regula falsi. */
@@ -488,6 +544,14 @@ function hAtCS(c: number, sn: number): number {
 const ROOT_ANGLE_TOL = 1e-13;
 /** Rounding level of the normalised G (sum of |coefficients| = 1). */
 const G_NOISE = 1e-15;
+/** A noise-level g with a bracket wider than this (radians) means a flat, high-order root. */
+const FLAT_BRACKET = 1e-9;
+/** Half-width (radians) of the window searched on f when h sinks into its rounding level. */
+const FLAT_WINDOW = 1e-3;
+/** Offset (radians) at which h is read around a golden-section minimum. */
+const POLISH_STEP = 1e-7;
+/** L^3 of the current query (scale of h's rounding level). */
+const HSCALE = new Float64Array(1);
 
 /** Safeguarded Newton (rtsafe) on G in [lo, hi] with a sign change, started at the secant point. */
 function refine(lo: number, hi: number, glo: number, ghi: number): number {
@@ -497,8 +561,9 @@ function refine(lo: number, hi: number, glo: number, ghi: number): number {
   for (let it = 0; it < 100; it++) {
     evalTrig4(G, Math.cos(x), Math.sin(x), EV);
     const gx = EV[0]!, dg = EV[1]!;
-    // G is normalised (sum of |coefficients| = 1): below this its sign is rounding noise.
-    if (Math.abs(gx) <= G_NOISE) return x;
+    // G is normalised (sum of |coefficients| = 1): below this its sign is rounding noise. A root of high
+    // order (A running along B's axis) reaches that level far from the root: finish on f itself.
+    if (Math.abs(gx) <= G_NOISE) return b - a > FLAT_BRACKET ? goldenOnF(a, b) : x;
     if ((gx < 0) === aNeg) a = x;
     else b = x;
     let next = dg !== 0 ? x - gx / dg : 0.5 * (a + b);

@@ -50,6 +50,9 @@ const NLOPT_MAXTIME: Record<InnerAlgorithm, number> = { slsqp: 2, mma: 0.25, ccs
 /** Start of the inner solve: τ this fraction of the box below zero (scaled units). */
 const START_BELOW_REL = 1e-3;
 
+/** Seconds HiGHS may spend on one step before the step is abandoned. */
+const HIGHS_STEP_TIME_LIMIT = 2;
+
 let highsPromise: Promise<Highs> | null = null;
 /** NLopt failures caught in this thread (each leaks a little WebAssembly memory). */
 let nloptFailures = 0;
@@ -191,7 +194,9 @@ async function highsStep(
         hessian: { format: 'triangular', dimension: n, starts: hStarts, indices: hIdx, values: hVal },
       },
       (model) => {
-        model.options.set({ output_flag: false });
+        // A time limit so a degenerate QP cannot hang a solve (seen on a 2 x 2 weave supercell); a stopped
+        // step is a rejected step, never a wrong one.
+        model.options.set({ output_flag: false, time_limit: HIGHS_STEP_TIME_LIMIT });
         model.run();
         if (model.getModelStatus() !== highs.constants.modelStatus.optimal) return fail;
         const x = model.getSolution().colValue;

@@ -32,9 +32,7 @@ export interface PeriodicRun {
 const KNOWN_MATCH_REL = 1e-6;
 
 export async function runPeriodicInflate(arg: string, options: PeriodicRunOptions, command = 'inflate'): Promise<PeriodicRun> {
-  if (options.symmetry !== undefined && options.symmetry.trim().toLowerCase() !== 'none') {
-    throw new InputError(`--symmetry ${options.symmetry}: point symmetries of weaves are not imposed (the lattice already repeats the cell); leave --symmetry out`);
-  }
+  refuseSymmetry(options.symmetry);
   const density = options.density !== undefined ? parseDensity(options.density) : null;
   const wire = options.wireDiameter !== undefined ? parseWireDiameter(options.wireDiameter) : undefined;
   if (wire !== undefined && density === null) throw new InputError('--wire-diameter: only sets the scale of the weight; give --density as well (g/cm3 or a material name such as steel)');
@@ -53,6 +51,13 @@ export async function runPeriodicInflate(arg: string, options: PeriodicRunOption
   }
   notes.push(...comparisonNotes(resolved, result));
   return { result, resolved, notes };
+}
+
+/** Point symmetries of weaves are not imposed: any --symmetry but none is bad input. */
+export function refuseSymmetry(symmetry: string | undefined): void {
+  if (symmetry !== undefined && symmetry.trim().toLowerCase() !== 'none') {
+    throw new InputError(`--symmetry ${symmetry}: point symmetries of weaves are not imposed (the lattice already repeats the cell); leave --symmetry out`);
+  }
 }
 
 export function problemOf(resolved: ResolvedPeriodic): PeriodicProblem {
