@@ -76,7 +76,7 @@ function timeIt(fn: () => void, repeats: number): number {
 async function twoThreads(): Promise<number> {
   // Worker threads need the compiled file: run the benchmark from dist/ (npm run bench).
   const file = new URL('./kernelWorker.js', import.meta.url);
-  const rounds = 5;
+  const rounds = 10;
   const workers = [0, 1].map((k) => new Worker(file, { workerData: { count: PAIRS, seed: SEED + k, rounds } }));
   await Promise.all(workers.map((w) => new Promise((res) => w.once('message', res))));
   const t0 = process.hrtime.bigint();
