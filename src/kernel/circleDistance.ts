@@ -544,8 +544,8 @@ function hAtCS(c: number, sn: number): number {
 const ROOT_ANGLE_TOL = 1e-13;
 /** Rounding level of the normalised G (sum of |coefficients| = 1). */
 const G_NOISE = 1e-15;
-/** A noise-level g with a bracket wider than this (radians) means a flat, high-order root. */
-const FLAT_BRACKET = 1e-9;
+/** A noise-level g whose slope is below this (normalised g) is a flat, high-order root. */
+const FLAT_SLOPE = 1e-6;
 /** Half-width (radians) of the window searched on f when h sinks into its rounding level. */
 const FLAT_WINDOW = 1e-3;
 /** Offset (radians) at which h is read around a golden-section minimum. */
@@ -563,7 +563,9 @@ function refine(lo: number, hi: number, glo: number, ghi: number): number {
     const gx = EV[0]!, dg = EV[1]!;
     // G is normalised (sum of |coefficients| = 1): below this its sign is rounding noise. A root of high
     // order (A running along B's axis) reaches that level far from the root: finish on f itself.
-    if (Math.abs(gx) <= G_NOISE) return b - a > FLAT_BRACKET ? goldenOnF(a, b) : x;
+    if (Math.abs(gx) <= G_NOISE) {
+      return Math.abs(dg) < FLAT_SLOPE ? goldenOnF(Math.max(a, x - FLAT_WINDOW), Math.min(b, x + FLAT_WINDOW)) : x;
+    }
     if ((gx < 0) === aNeg) a = x;
     else b = x;
     let next = dg !== 0 ? x - gx / dg : 0.5 * (a + b);
