@@ -183,10 +183,6 @@ export function formatInflate(run: InflateRun, output?: string): string {
       `Upper bound (circle packing): ${L(b.tube)}; ring ${r.rings[b.ring]?.name ?? b.ring} has ${b.through} ring${b.through === 1 ? '' : 's'} through it; ` +
         `gap (bound - tube) / bound = ${sci(b.gap)} (dimensionless)`,
     );
-    // The bound holds for every arrangement with this linking pattern, so attaining it proves global optimality.
-    if (r.verification.ok && b.gap <= BOUND_ATTAINED) {
-      lines.push('  The bound is attained: no arrangement of these rings with this linking can have a thicker tube (global optimum).');
-    }
   }
   const c = r.certificate;
   lines.push(
@@ -194,6 +190,11 @@ export function formatInflate(run: InflateRun, output?: string): string {
       `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}`,
   );
   if (c.note) lines.push(`  ${c.note}`);
+  // The packing bound holds for every arrangement with this linking pattern, so attaining it settles the global
+  // question that the local certificate leaves open.
+  if (r.bound && r.verification.ok && r.bound.gap <= BOUND_ATTAINED) {
+    lines.push('  The packing bound is attained, so no arrangement of these rings with this linking has a thicker tube: this is the global optimum.');
+  }
   const v = r.verification;
   lines.push(
     `Independent check: ${v.ok ? 'passed' : 'FAILED'}; min clearance ${sci(v.minClearance)} of the tube (dimensionless); ` +
