@@ -190,8 +190,11 @@ export function circleContacts(
 
   // Coaxial: parallel normals and A's centre on B's axis — every point of A is a closest point.
   const zD = Nx * Dx + Ny * Dy + Nz * Dz;
-  const cxn = Math.hypot(nA[1]! * Nz - nA[2]! * Ny, nA[2]! * Nx - nA[0]! * Nz, nA[0]! * Ny - nA[1]! * Nx);
-  const off = Math.hypot(Dx - zD * Nx, Dy - zD * Ny, Dz - zD * Nz);
+  // Plain square roots: Math.hypot guards against overflow we cannot reach and is several times slower.
+  const cx = nA[1]! * Nz - nA[2]! * Ny, cy = nA[2]! * Nx - nA[0]! * Nz, cz = nA[0]! * Ny - nA[1]! * Nx;
+  const cxn = Math.sqrt(cx * cx + cy * cy + cz * cz);
+  const ox = Dx - zD * Nx, oy = Dy - zD * Ny, oz = Dz - zD * Nz;
+  const off = Math.sqrt(ox * ox + oy * oy + oz * oz);
   if (cxn * RA <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L) {
     lastKind = 'coaxial';
     lastCertified = true;
@@ -234,7 +237,10 @@ export function circleContacts(
   const inv = 1 / gNorm;
   let L4 = 0;
   for (let i = 0; i < 9; i++) G[i]! *= inv;
-  for (let k = 1; k <= 4; k++) L4 += k * k * k * k * Math.hypot(G[2 * k - 1]!, G[2 * k]!);
+  for (let k = 1; k <= 4; k++) {
+    const ca = G[2 * k - 1]!, cb = G[2 * k]!;
+    L4 += k * k * k * k * Math.sqrt(ca * ca + cb * cb);
+  }
   // Grid values of g (shared endpoints of the initial intervals).
   const g0 = G[0]!, g1 = G[1]!, g2 = G[2]!, g3 = G[3]!, g4 = G[4]!, g5 = G[5]!, g6 = G[6]!, g7 = G[7]!, g8 = G[8]!;
   for (let i = 0; i <= INITIAL_INTERVALS; i++) {
