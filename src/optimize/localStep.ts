@@ -50,6 +50,8 @@ const NLOPT_MAXTIME: Record<InnerAlgorithm, number> = { slsqp: 2, mma: 0.25, ccs
 /** Start of the inner solve: τ this fraction of the box below zero (scaled units). */
 const START_BELOW_REL = 1e-3;
 
+/** Infeasibility of an SLSQP step still used when HiGHS cannot answer (relative to the step box). */
+const FALLBACK_FEAS_REL = 1e-6;
 /** Seconds HiGHS may spend on one step before the step is abandoned. */
 const HIGHS_STEP_TIME_LIMIT = 2;
 
@@ -93,6 +95,8 @@ export async function localStep(
   const secondOk = second.ok && feasible(second, cons, t, box);
   if (firstOk && (!secondOk || first!.tau >= second.tau)) return first!;
   if (secondOk) return second;
+  // HiGHS gave no answer (time limit): a nearly feasible SLSQP step is still worth judging on the kernel.
+  if (first !== null && first.ok && violation(first, cons, t, box) <= FALLBACK_FEAS_REL * box) return first;
   return { ok: false, z: new Float64Array(nFree), tau: 0, solver: 'nlopt' };
 }
 
@@ -209,13 +213,19 @@ async function highsStep(
 }
 
 /** The linearised constraints and the box hold at the returned step (up to QP_FEAS_REL of the scale). */
-function feasible(step: StepResult, cons: readonly Constraint[], t: number, box: number): boolean {
-  const tol = QP_FEAS_REL * Math.max(t, box, 1e-300) + 1e-12 * box;
-  for (const z of step.z) if (!(Math.abs(z) <= box * (1 + 1e-9))) return false;
+/** Largest violation of the linearised constraints and the box at a step (layout units; Infinity if not finite). */
+function violation(step: StepResult, cons: readonly Constraint[], t: number, box: number): number {
+  let worst = 0;
+  for (const z of step.z) worst = Math.max(worst, Math.abs(z) - box * (1 + 1e-9));
   for (const con of cons) {
     let v = con.c * step.tau - (con.g - con.c * t);
     for (let i = 0; i < step.z.length; i++) v -= con.grad[i]! * step.z[i]!;
-    if (!(v <= tol)) return false;
+    worst = Math.max(worst, v);
   }
-  return true;
+  return Number.isFinite(worst) ? worst : Infinity;
+}
+
+/** The linearised constraints and the box hold at the returned step (up to QP_FEAS_REL of the scale). */
+function feasible(step: StepResult, cons: readonly Constraint[], t: number, box: number): boolean {
+  return violation(step, cons, t, box) <= QP_FEAS_REL * Math.max(t, box, 1e-300) + 1e-12 * box;
 }

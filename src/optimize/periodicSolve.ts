@@ -2,7 +2,7 @@
 // lattice vectors (periodicProblem.ts). The method is that of solve.ts on a periodic chart: at the current
 // arrangement the kernel finds every strut between a cell ring and every image within reach; the struts
 // are linearised (images chained to their ring and to the lattice vectors) and the proximal QP of
-// localStep.ts proposes a step (periodicStep.ts: the same QP, with HiGHS bounded in time), judged on the
+// localStep.ts proposes a step (HiGHS bounded in time), judged on the
 // exact kernel (true tube, linked pairs unchanged) with a trust radius. Once the predicted gain is small,
 // Newton on the KKT system (periodicPolish.ts) finishes and non-negative strut forces (certificate.ts)
 // certify a Kuhn–Tucker point. The second-order test and the saddle escape of solve.ts are not done here.
@@ -12,14 +12,13 @@ import { periodicLinks, sameLinks } from '../model/periodic.js';
 import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
 import { certify } from './certificate.js';
-import { readySolvers, type InnerAlgorithm } from './localStep.js';
+import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
 import { seededRandom } from './perturb.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from './periodicChart.js';
 import {
   evaluatePeriodic, newPeriodicConstraint, periodicTube, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
 } from './periodicConstraints.js';
 import { polishPeriodic } from './periodicPolish.js';
-import { periodicStep } from './periodicStep.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
 
@@ -74,7 +73,7 @@ export async function solvePeriodic(problem: PeriodicProblem, options: SolveOpti
     const pc = buildPeriodicChart(state.rings, state.lattice);
     const box = Math.min(delta, BOX_MAX_REL * scale);
     const cons = collect(pc, state, ctx, MARGIN_BOXES * box);
-    const step = await periodicStep(cons, pc.nFree, state.t, delta, box, tMax, algorithm, trigger * state.t);
+    const step = await localStep(cons, pc.nFree, state.t, delta, box, tMax, algorithm, trigger * state.t);
     iterations++;
     if (!step.ok) {
       failures++;
