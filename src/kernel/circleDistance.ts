@@ -21,8 +21,8 @@
  * the other (the tight Hopf link). Those return evenly spaced representatives and set lastContinuum().
  * Parallel planes and coplanar circles are not special: they have isolated minima unless coaxial.
  */
-import type { Circle, Vec3 } from '../model/types.js';
 import { mulTrig, evalTrig4 } from './trigPoly.js';
+import { basisInto, wrapAngle } from './frame.js';
 
 /** Floats per contact in the raw output buffer: [angleA, distance, pA(3), pB(3)]. */
 export const CONTACT_STRIDE = 8;
@@ -47,59 +47,6 @@ const MAX_INTERVAL_VISITS = 3000;
 const TWO_PI = 2 * Math.PI;
 
 export type ContinuumKind = 'coaxial' | 'on-tube';
-
-export interface Contact {
-  onA: Vec3;
-  onB: Vec3;
-  distance: number;
-  /** Angle of onA around A's core, measured in planeBasis(nA). */
-  angleA: number;
-  /** Angle of onB around B's core, measured in planeBasis(nB). */
-  angleB: number;
-}
-
-export interface RingDistance {
-  /** Global minimum distance between the two core circles. */
-  distance: number;
-  /** Every local minimum of the distance (struts); for a continuum, evenly spaced representatives. */
-  contacts: Contact[];
-  degenerate: boolean;
-  continuum: { kind: ContinuumKind; description: string } | null;
-  /**
-   * True when every local minimum was isolated with certified bounds (or the pair is an exact continuum).
-   * False in the near-continuum regime, where minima shallower than ~1e-8 of the squared size may be merged.
-   */
-  certified: boolean;
-}
-
-/** Library entry point: normals need not be unit; allocation is fine here. */
-export function ringDistance(a: Circle, b: Circle): RingDistance {
-  const nA = unit(a.normal), nB = unit(b.normal);
-  const out = new Float64Array(MAX_CONTACTS * CONTACT_STRIDE);
-  const count = circleContacts(a.center, nA, a.radius, b.center, nB, b.radius, out);
-  const kind = lastKind;
-  const certified = lastCertified;
-  const eB = basis(nB);
-  const contacts: Contact[] = [];
-  let distance = Infinity;
-  for (let i = 0; i < count; i++) {
-    const o = i * CONTACT_STRIDE;
-    const onA: Vec3 = [out[o + 2]!, out[o + 3]!, out[o + 4]!];
-    const onB: Vec3 = [out[o + 5]!, out[o + 6]!, out[o + 7]!];
-    const qx = onB[0] - b.center[0]!, qy = onB[1] - b.center[1]!, qz = onB[2] - b.center[2]!;
-    const angleB = wrapAngle(Math.atan2(qx * eB[3] + qy * eB[4] + qz * eB[5], qx * eB[0] + qy * eB[1] + qz * eB[2]));
-    const d = out[o + 1]!;
-    if (d < distance) distance = d;
-    contacts.push({ onA, onB, distance: d, angleA: out[o]!, angleB });
-  }
-  return {
-    distance,
-    contacts,
-    degenerate: kind !== null,
-    continuum: kind === null ? null : { kind, description: describe(kind, distance) },
-    certified,
-  };
-}
 
 let lastKind: ContinuumKind | null = null;
 let lastCertified = true;
@@ -347,34 +294,6 @@ function globalFallback(out: Float64Array): number {
   }
   writeContact(out, 0, wrapAngle(0.5 * (lo + hi)));
   return 1;
-}
-
-/** Distance from point p to the circle (c, unit n, R), and the closest point written to out (if given). */
-export function closestPointOnCircle(
-  p: ArrayLike<number>, c: ArrayLike<number>, n: ArrayLike<number>, R: number, out?: Float64Array | number[],
-): number {
-  const dx = p[0]! - c[0]!, dy = p[1]! - c[1]!, dz = p[2]! - c[2]!;
-  const z = dx * n[0]! + dy * n[1]! + dz * n[2]!;
-  let qx = dx - z * n[0]!, qy = dy - z * n[1]!, qz = dz - z * n[2]!;
-  const rho = Math.hypot(qx, qy, qz);
-  if (rho > 0) {
-    qx /= rho; qy /= rho; qz /= rho;
-  } else {
-    // On the axis every point of the circle is closest; pick the frame's angle-0 point.
-    basisInto(n[0]!, n[1]!, n[2]!, FR);
-    qx = FR[0]!; qy = FR[1]!; qz = FR[2]!;
-  }
-  if (out) {
-    out[0] = c[0]! + R * qx;
-    out[1] = c[1]! + R * qy;
-    out[2] = c[2]! + R * qz;
-  }
-  return Math.hypot(z, rho - R);
-}
-
-/** Eberly's point–circle distance d^2 = (n.Δ)^2 + (|Δ - (n.Δ)n| - R)^2. */
-export function pointCircleDistance(p: ArrayLike<number>, c: ArrayLike<number>, n: ArrayLike<number>, R: number): number {
-  return closestPointOnCircle(p, c, n, R);
 }
 
 // ---------------------------------------------------------------------------------------------------
@@ -634,35 +553,4 @@ function isConstantF(L: number): boolean {
     if (d > hi) hi = d;
   }
   return hi - lo <= CONTINUUM_REL_TOL * L;
-}
-
-/** Duff et al. 2017 orthonormal basis (same as planeBasis in model/vec.ts), written into out[0..5]. */
-function basisInto(nx: number, ny: number, nz: number, out: Float64Array): void {
-  const sign = nz >= 0 ? 1 : -1;
-  const a = -1 / (sign + nz);
-  const b = nx * ny * a;
-  out[0] = 1 + sign * nx * nx * a; out[1] = sign * b; out[2] = -sign * nx;
-  out[3] = b; out[4] = sign + ny * ny * a; out[5] = -ny;
-}
-
-function basis(n: ArrayLike<number>): Float64Array {
-  const out = new Float64Array(6);
-  basisInto(n[0]!, n[1]!, n[2]!, out);
-  return out;
-}
-
-function unit(v: ArrayLike<number>): Vec3 {
-  const l = Math.hypot(v[0]!, v[1]!, v[2]!);
-  return [v[0]! / l, v[1]! / l, v[2]! / l];
-}
-
-function wrapAngle(s: number): number {
-  const r = s % TWO_PI;
-  return r < 0 ? r + TWO_PI : r;
-}
-
-function describe(kind: ContinuumKind, d: number): string {
-  return kind === 'coaxial'
-    ? `coaxial circles: every point of A is at the same distance ${d} from B`
-    : `A lies on the tube of radius ${d} around B: a whole circle of closest pairs`;
 }

@@ -1,2 +1,5 @@
 export * from './circleDistance.js';
+export * from './ringDistance.js';
+export * from './pointCircle.js';
 export * from './gradient.js';
+export * from './frame.js';
