@@ -211,13 +211,19 @@ export function formatInflate(run: InflateRun, output?: string): string {
   if (r.contacts.length > 0) {
     lines.push('');
     lines.push('Contacts (active struts; forces dimensionless, summing to 1)');
-    lines.push(table(
-      ['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''],
-      r.contacts.map((x, k) => [
-        `${r.rings[x.a]?.name ?? x.a}-${r.rings[x.b]?.name ?? x.b}${copyLabel(r, k)}`,
-        vec(x.onA, scale), vec(x.onB, scale), num(x.distance), num(x.force), x.continuum ? 'continuum representative' : '',
-      ]),
-    ));
+    // A whole circle of contact is carried by many sample points: list those that carry force, count the rest.
+    const omitted = new Map<string, number>();
+    const rows: string[][] = [];
+    r.contacts.forEach((x, k) => {
+      const pair = `${r.rings[x.a]?.name ?? x.a}-${r.rings[x.b]?.name ?? x.b}${copyLabel(r, k)}`;
+      if (x.continuum && !(x.force > 0)) {
+        omitted.set(pair, (omitted.get(pair) ?? 0) + 1);
+        return;
+      }
+      rows.push([pair, vec(x.onA, scale), vec(x.onB, scale), num(x.distance), num(x.force), x.continuum ? 'sample of a contact circle' : '']);
+    });
+    lines.push(table(['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''], rows));
+    for (const [pair, n] of omitted) lines.push(`  ${pair}: ${n} more sample points of the same contact circle carry no force (listed with --json)`);
   }
   lines.push('');
   lines.push('Starts');
