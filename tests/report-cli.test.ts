@@ -1,5 +1,7 @@
 // `thickring report`: bad input is refused with a clear message, exit 2 and nothing written; a good
 // result file (hand-built, so no solver is involved) gives one self-contained HTML file.
+// The hand-built tight Hopf result is the configuration of Cantarella, Kusner, Sullivan, Invent. Math. 150
+// (2002): two round rings, each through the other's centre, tube R/2.
 import { existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
