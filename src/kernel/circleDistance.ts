@@ -10,18 +10,22 @@
  * is a trigonometric polynomial of degree 4 — Neff's (1990) degree-8 polynomial in tan(s/2).
  *
  * Why this cannot miss a local minimum: every local minimum of f is a root of h, hence of g. All real roots
- * of g on [0, 2π) are isolated by interval subdivision with certified bounds (a second-order Taylor bound with
- * |g''| <= sum k^2 |c_k| excludes an interval; |g'(m)| > |g''|max * r proves at most one root, found by a sign
- * change). Nothing is sampled, so a minimum is never skipped between samples; only double roots (a minimum
- * being born) are resolved at the subdivision floor. Minima are the roots where h changes sign from - to +,
- * read between neighbouring events; A's crossings of B's axis (cusp maxima of f) are added as events. The root
- * with the smallest f is always reported, since the global minimum is a stationary point of f.
+ * of g on [0, 2π) are isolated by interval subdivision with certified bounds (a fourth-order Taylor bound with
+ * |g''''| <= sum k^4 |c_k| excludes an interval; the same bound on g' or g'' proves g monotone, or convex with
+ * a sign change, so exactly one root lies inside). Nothing is sampled, so a minimum is never skipped between
+ * samples; only double roots (a minimum being born) are resolved at the subdivision floor. Minima are the
+ * roots where h changes sign from - to + across their interval. The root with the smallest f is always
+ * reported, since the global minimum is a stationary point of f.
+ *
+ * Speed (bench/kernel): no allocation per query (doubles for non-inlined helpers travel in a typed array, since
+ * V8 boxes them in calls), h read from linear forms fixed per query, Halley's iteration started from the
+ * interval's own Taylor data with cos and sin carried by rotation.
  *
  * Continua of closest pairs (f constant): coaxial circles, and a circle lying on a constant-radius tube around
  * the other (the tight Hopf link). Those return evenly spaced representatives and set lastContinuum().
  * Parallel planes and coplanar circles are not special: they have isolated minima unless coaxial.
  */
-import { mulTrig, evalTrig4 } from './trigPoly.js';
+import { mulTrig22, evalTrig4 } from './trigPoly.js';
 import { basisInto, wrapAngle } from './frame.js';
 
 /** Floats per contact in the raw output buffer: [angleA, distance, pA(3), pB(3)]. */
@@ -61,11 +65,6 @@ export function lastContinuum(): ContinuumKind | null {
 
 // Scratch buffers, created once per module copy (each worker thread has its own).
 const FR = new Float64Array(6);
-const ZC = new Float64Array(3);
-const ZPC = new Float64Array(3);
-const PPC = new Float64Array(3);
-const Z2 = new Float64Array(5);
-const ZZP = new Float64Array(5);
 const W = new Float64Array(5);
 const WP = new Float64Array(5);
 const PP2 = new Float64Array(5);
@@ -80,6 +79,10 @@ const H0 = Math.PI / INITIAL_INTERVALS;
 /** Subdivision levels: the switch half-width SWITCH_WIDTH = H0 / 2^MAX_LEVEL is about 1e-6 rad. */
 const MAX_LEVEL = 17;
 const HALF_WIDTH = new Float64Array(MAX_LEVEL + 1);
+/** Taylor factors r^2/2, r^3/6, r^4/24 of each level's half-width r (multiplications, no divisions, in the loop). */
+const TAY2 = new Float64Array(MAX_LEVEL + 1);
+const TAY3 = new Float64Array(MAX_LEVEL + 1);
+const TAY4 = new Float64Array(MAX_LEVEL + 1);
 const HALF_C = new Float64Array(MAX_LEVEL + 1);
 const HALF_S = new Float64Array(MAX_LEVEL + 1);
 const FULL_C = new Float64Array(MAX_LEVEL + 1);
@@ -88,6 +91,9 @@ for (let l = 0; l <= MAX_LEVEL; l++) {
   FULL_C[l] = Math.cos(H0 / 2 ** l);
   FULL_S[l] = Math.sin(H0 / 2 ** l);
   HALF_WIDTH[l] = H0 / 2 ** l;
+  TAY2[l] = HALF_WIDTH[l]! ** 2 / 2;
+  TAY3[l] = HALF_WIDTH[l]! ** 3 / 6;
+  TAY4[l] = HALF_WIDTH[l]! ** 4 / 24;
   HALF_C[l] = Math.cos(H0 / 2 ** (l + 1));
   HALF_S[l] = Math.sin(H0 / 2 ** (l + 1));
 }
@@ -107,8 +113,16 @@ for (let i = 0; i <= 2 * INITIAL_INTERVALS; i++) {
 
 // Geometry of the current query (module scope so helpers need no arguments).
 // Held in a typed array, not module-level `let`s: doubles stored in closure slots are boxed on every write.
-const GEO = new Float64Array(20);
-const enum Geo { Dx, Dy, Dz, e1x, e1y, e1z, e2x, e2y, e2z, Bx, By, Bz, Nx, Ny, Nz, Ax, Ay, Az, rA, rB }
+const GEO = new Float64Array(50);
+const enum Geo {
+  Dx, Dy, Dz, e1x, e1y, e1z, e2x, e2y, e2z, Bx, By, Bz, Nx, Ny, Nz, Ax, Ay, Az, rA, rB,
+  // Part of A(s) - cB normal to B's axis, u(s) = U0 + U1 cos s + U2 sin s, and the coefficients of
+  // z(s) = zD + za cos s + zb sin s and p'(s) = pb cos s - pa sin s: h at any angle from these (see hFromCS).
+  U0x, U0y, U0z, U1x, U1y, U1z, U2x, U2y, U2z, zD, za, zb, pa, pb,
+  // Arguments and results of the hot helpers. V8 boxes every double passed to or returned from a function it
+  // does not inline (isolateMinima, refine and writeRoot are too large to inline): one heap number each.
+  L4, noise, hNoise, lo, hi, gLo, gHi, mid, cMid, sMid, gMid, dgMid, ddgMid, root, cRoot, sRoot,
+}
 
 /**
  * Hot path. Unit normals required. Writes CONTACT_STRIDE floats per local minimum into out
@@ -153,16 +167,18 @@ export function circleContacts(
   const De1 = Dx * e1x + Dy * e1y + Dz * e1z, De2 = Dx * e2x + Dy * e2y + Dz * e2z;
   const za = RA * e1n, zb = RA * e2n;
   const pa = 2 * RA * De1, pb = 2 * RA * De2;
-  ZC[0] = zD; ZC[1] = za; ZC[2] = zb;
-  ZPC[0] = 0; ZPC[1] = zb; ZPC[2] = -za;
-  PPC[0] = 0; PPC[1] = pb; PPC[2] = -pa;
-  mulTrig(ZC, 1, ZC, 1, Z2);
-  mulTrig(ZC, 1, ZPC, 1, ZZP);
-  W[0] = dd + RA * RA - Z2[0]!; W[1] = pa - Z2[1]!; W[2] = pb - Z2[2]!; W[3] = -Z2[3]!; W[4] = -Z2[4]!;
-  WP[0] = -2 * ZZP[0]!; WP[1] = pb - 2 * ZZP[1]!; WP[2] = -pa - 2 * ZZP[2]!; WP[3] = -2 * ZZP[3]!; WP[4] = -2 * ZZP[4]!;
-  mulTrig(PPC, 1, PPC, 1, PP2);
-  mulTrig(PP2, 2, W, 2, T1);
-  mulTrig(WP, 2, WP, 2, T2);
+  GEO[Geo.U0x] = ox; GEO[Geo.U0y] = oy; GEO[Geo.U0z] = oz;
+  GEO[Geo.U1x] = RA * (e1x - e1n * Nx); GEO[Geo.U1y] = RA * (e1y - e1n * Ny); GEO[Geo.U1z] = RA * (e1z - e1n * Nz);
+  GEO[Geo.U2x] = RA * (e2x - e2n * Nx); GEO[Geo.U2y] = RA * (e2y - e2n * Ny); GEO[Geo.U2z] = RA * (e2z - e2n * Nz);
+  GEO[Geo.zD] = zD; GEO[Geo.za] = za; GEO[Geo.zb] = zb; GEO[Geo.pa] = pa; GEO[Geo.pb] = pb;
+  // Closed-form squares (product-to-sum) of z = zD + za c + zb s and z z' and p'^2, then w = p - z^2 and
+  // w' = p' - 2 z z'; the degree-4 products p'^2 w and w'^2 by mulTrig22.
+  W[0] = dd + RA * RA - zD * zD - 0.5 * (za * za + zb * zb); W[1] = pa - 2 * zD * za; W[2] = pb - 2 * zD * zb;
+  W[3] = -0.5 * (za * za - zb * zb); W[4] = -za * zb;
+  WP[0] = 0; WP[1] = pb - 2 * zD * zb; WP[2] = -pa + 2 * zD * za; WP[3] = -2 * za * zb; WP[4] = za * za - zb * zb;
+  PP2[0] = 0.5 * (pa * pa + pb * pb); PP2[1] = 0; PP2[2] = 0; PP2[3] = 0.5 * (pb * pb - pa * pa); PP2[4] = -pa * pb;
+  mulTrig22(PP2, W, T1);
+  mulTrig22(WP, WP, T2);
   let gNorm = 0, gScale = 0;
   const RB2 = RB * RB;
   for (let i = 0; i < 9; i++) {
@@ -199,7 +215,8 @@ export function circleContacts(
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
   lastCertified = true;
   HSCALE[0] = L * L * L;
-  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(L4, (2 * EPS) / relative, H_NOISE * HSCALE[0]!, relative < WELL_CONDITIONED_REL, out);
+  GEO[Geo.L4] = L4; GEO[Geo.noise] = (2 * EPS) / relative; GEO[Geo.hNoise] = H_NOISE * HSCALE[0]!;
+  let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(relative < WELL_CONDITIONED_REL, out);
   if (count < 0) {
     lastCertified = false;
     count = sampleMinima(out);
@@ -312,19 +329,20 @@ function globalFallback(out: Float64Array): number {
  * than SWITCH_WIDTH would differ in depth by ~SWITCH_WIDTH^3 (relative) and are reported once.
  * Child midpoints are rotations of the parent's (cos, sin) from per-level tables: no trig calls.
  */
-function isolateMinima(L4: number, noise: number, hNoise: number, polishOnH: boolean, out: Float64Array): number {
+function isolateMinima(polishOnH: boolean, out: Float64Array): number {
+  const L4 = GEO[Geo.L4]!, noise = GEO[Geo.noise]!, hNoise = GEO[Geo.hNoise]!;
   let count = 0;
   let top = 0;
+  const g0 = G[0]!, g1 = G[1]!, g2 = G[2]!, g3 = G[3]!, g4 = G[4]!, g5 = G[5]!, g6 = G[6]!, g7 = G[7]!, g8 = G[8]!;
   for (let i = INITIAL_INTERVALS - 1; i >= 0; i--) {
     STACK[top++] = (2 * i + 1) * H0; STACK[top++] = 0; STACK[top++] = GLO[i]!; STACK[top++] = GLO[i + 1]!;
     STACK[top++] = GRID_C[2 * i + 1]!; STACK[top++] = GRID_S[2 * i + 1]!;
   }
-  const g0 = G[0]!, g1 = G[1]!, g2 = G[2]!, g3 = G[3]!, g4 = G[4]!, g5 = G[5]!, g6 = G[6]!, g7 = G[7]!, g8 = G[8]!;
   let visits = 0;
   while (top > 0) {
     const sm = STACK[--top]!, cm = STACK[--top]!, ghi = STACK[--top]!, glo = STACK[--top]!;
     const level = STACK[--top]!, m = STACK[--top]!;
-    const r = HALF_WIDTH[level]!;
+    const r = HALF_WIDTH[level]!, t2 = TAY2[level]!, t3 = TAY3[level]!, t4 = TAY4[level]!;
     // g and its first three derivatives at m (evalTrig4 inlined: this loop is the kernel's hot spot).
     const c2 = cm * cm - sm * sm, s2 = 2 * sm * cm;
     const c3 = c2 * cm - s2 * sm, s3 = s2 * cm + c2 * sm;
@@ -332,12 +350,16 @@ function isolateMinima(L4: number, noise: number, hNoise: number, polishOnH: boo
     const a1 = g1 * cm + g2 * sm, a2 = g3 * c2 + g4 * s2, a3 = g5 * c3 + g6 * s3, a4 = g7 * c4 + g8 * s4;
     const b1 = g2 * cm - g1 * sm, b2 = g4 * c2 - g3 * s2, b3 = g6 * c3 - g5 * s3, b4 = g8 * c4 - g7 * s4;
     const gm = g0 + a1 + a2 + a3 + a4;
-    const dgm = Math.abs(b1 + 2 * b2 + 3 * b3 + 4 * b4);
-    const ddgm = Math.abs(a1 + 4 * a2 + 9 * a3 + 16 * a4);
+    const dgSigned = b1 + 2 * b2 + 3 * b3 + 4 * b4, ddgSigned = -(a1 + 4 * a2 + 9 * a3 + 16 * a4);
+    const dgm = Math.abs(dgSigned);
+    const ddgm = Math.abs(ddgSigned);
     const d3gm = Math.abs(b1 + 8 * b2 + 27 * b3 + 64 * b4);
     visits++;
-    if (Math.abs(gm) - r * (dgm + r * (0.5 * ddgm + r * (d3gm / 6 + (r * L4) / 24))) > noise) continue;
-    const unique = dgm - r * (ddgm + r * (0.5 * d3gm + (r * L4) / 6)) > 0;
+    if (Math.abs(gm) - (r * dgm + t2 * ddgm + t3 * d3gm + t4 * L4) > noise) continue;
+    // One root: g monotone (|g'| bounded away from 0), or g convex/concave (|g''| bounded away from 0) with a
+    // sign change at the ends (a convex function crosses zero once between ends of opposite sign).
+    const unique = dgm - (r * ddgm + t2 * d3gm + t3 * L4) > 0
+      || (glo * ghi < 0 && ddgm - (r * d3gm + t2 * L4) > 0);
     // End values within the rounding level cannot prove the absence of a sign change: ask h.
     const clear = Math.abs(glo) > noise && Math.abs(ghi) > noise;
     if (unique && clear && glo * ghi > 0) continue;
@@ -345,17 +367,39 @@ function isolateMinima(L4: number, noise: number, hNoise: number, polishOnH: boo
     const floor = level + 1 >= MAX_LEVEL;
     if (unique || floor) {
       // One root here (or the switch width is reached): read h at both ends.
+      // h at both ends from the precomputed forms (hAtCS inlined by hand: a call would box its doubles).
       const cr = FULL_C[level]!, sr = FULL_S[level]!;
-      const hLo = hAtCS(cm * cr + sm * sr, sm * cr - cm * sr);
-      const hHi = hAtCS(cm * cr - sm * sr, sm * cr + cm * sr);
+      const cl = cm * cr + sm * sr, sl = sm * cr - cm * sr, ch = cm * cr - sm * sr, sh = sm * cr + cm * sr;
+      const u0x = GEO[Geo.U0x]!, u0y = GEO[Geo.U0y]!, u0z = GEO[Geo.U0z]!;
+      const u1x = GEO[Geo.U1x]!, u1y = GEO[Geo.U1y]!, u1z = GEO[Geo.U1z]!;
+      const u2x = GEO[Geo.U2x]!, u2y = GEO[Geo.U2y]!, u2z = GEO[Geo.U2z]!;
+      const zD = GEO[Geo.zD]!, za = GEO[Geo.za]!, zb = GEO[Geo.zb]!, pa = GEO[Geo.pa]!, pb = GEO[Geo.pb]!;
+      const rB = GEO[Geo.rB]!;
+      const lx = u0x + u1x * cl + u2x * sl, ly = u0y + u1y * cl + u2y * sl, lz = u0z + u1z * cl + u2z * sl;
+      const ppl = pb * cl - pa * sl;
+      const hLo = ppl * Math.sqrt(lx * lx + ly * ly + lz * lz)
+        - rB * (ppl - 2 * (zD + za * cl + zb * sl) * (zb * cl - za * sl));
+      // h > 0 at the lower end: no minimum starts here (nothing below acts on it unless at the switch width).
+      if (hLo > hNoise && !floor) continue;
+      const hx = u0x + u1x * ch + u2x * sh, hy = u0y + u1y * ch + u2y * sh, hz = u0z + u1z * ch + u2z * sh;
+      const pph = pb * ch - pa * sh;
+      const hHi = pph * Math.sqrt(hx * hx + hy * hy + hz * hz)
+        - rB * (pph - 2 * (zD + za * ch + zb * sh) * (zb * ch - za * sh));
       // Signs with a dead zone: a root on a shared end must be seen as zero from both sides (the two ends
       // are computed by different rotations), so exactly one of the two intervals claims it.
       const sLo = hLo < -hNoise ? -1 : hLo > hNoise ? 1 : 0;
       const sHi = hHi < -hNoise ? -1 : hHi > hNoise ? 1 : 0;
       if (sLo < 0 && sHi > 0 && count < MAX_CONTACTS) {
-        const root = unique && clear && glo * ghi < 0 && !polishOnH ? refine(m - r, m + r, glo, ghi)
-          : refineH(m - r, m + r, hLo, hHi);
-        writeContact(out, count++, wrapAngle(root));
+        if (unique && clear && glo * ghi < 0 && !polishOnH) {
+          GEO[Geo.lo] = m - r; GEO[Geo.hi] = m + r; GEO[Geo.gLo] = glo; GEO[Geo.gHi] = ghi;
+          GEO[Geo.mid] = m; GEO[Geo.cMid] = cm; GEO[Geo.sMid] = sm;
+          GEO[Geo.gMid] = gm; GEO[Geo.dgMid] = dgSigned; GEO[Geo.ddgMid] = ddgSigned;
+          refine();
+        } else {
+          rootAt(refineH(m - r, m + r, hLo, hHi));
+        }
+        GEO[Geo.root] = wrapAngle(GEO[Geo.root]!);
+        writeRoot(out, count++);
       } else if (sLo < 0 && sHi === 0 && count < MAX_CONTACTS) {
         // h falls into its rounding level here: either a root on the shared end, or a flat high-order minimum
         // (A running along B's axis) somewhere inside the dead zone. Polish on f itself over a window.
@@ -454,15 +498,17 @@ function hAt(s: number): number {
   return hAtCS(Math.cos(s), Math.sin(s));
 }
 
+/**
+ * h = p' rho - RB w' with w' = p' - 2 z z', from linear forms fixed per query: u = U0 + U1 c + U2 s (the
+ * part of A(s) - cB normal to B's axis, so rho = |u| is read without the cancellation of p - z^2), z and p'.
+ */
 function hAtCS(c: number, sn: number): number {
-  const Dx = GEO[Geo.Dx]!, Dy = GEO[Geo.Dy]!, Dz = GEO[Geo.Dz]!, e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
-  const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
-  const tx = rA * (-e1x * sn + e2x * c), ty = rA * (-e1y * sn + e2y * c), tz = rA * (-e1z * sn + e2z * c);
-  const z = dx * Nx + dy * Ny + dz * Nz, zp = tx * Nx + ty * Ny + tz * Nz;
-  const ux = dx - z * Nx, uy = dy - z * Ny, uz = dz - z * Nz;
-  const rho = Math.sqrt(ux * ux + uy * uy + uz * uz);
-  const pp = 2 * (dx * tx + dy * ty + dz * tz);
-  return pp * rho - rB * (pp - 2 * z * zp);
+  const ux = GEO[Geo.U0x]! + GEO[Geo.U1x]! * c + GEO[Geo.U2x]! * sn;
+  const uy = GEO[Geo.U0y]! + GEO[Geo.U1y]! * c + GEO[Geo.U2y]! * sn;
+  const uz = GEO[Geo.U0z]! + GEO[Geo.U1z]! * c + GEO[Geo.U2z]! * sn;
+  const za = GEO[Geo.za]!, zb = GEO[Geo.zb]!;
+  const pp = GEO[Geo.pb]! * c - GEO[Geo.pa]! * sn;
+  return pp * Math.sqrt(ux * ux + uy * uy + uz * uz) - GEO[Geo.rB]! * (pp - 2 * (GEO[Geo.zD]! + za * c + zb * sn) * (zb * c - za * sn));
 }
 
 /** Root angles are resolved to this many radians (distance error is quadratic in it, so far below 1e-16). */
@@ -478,32 +524,78 @@ const POLISH_STEP = 1e-7;
 /** L^3 of the current query (scale of h's rounding level). */
 const HSCALE = new Float64Array(1);
 
-/** Safeguarded Newton (rtsafe) on G in [lo, hi] with a sign change, started at the secant point. */
-function refine(lo: number, hi: number, glo: number, ghi: number): number {
-  let a = lo, b = hi;
-  const aNeg = glo < 0;
-  let x = lo - (glo * (hi - lo)) / (ghi - glo);
+/**
+ * Safeguarded Halley iteration on G in [lo, hi] (GEO slots) with a sign change, started at the midpoint
+ * whose g, g', g'' the isolation already holds; the root and its cosine and sine go to GEO. Halley's step
+ * uses g'' (computed with g' anyway) and converges cubically; the loop stops once the Newton error estimate
+ * |g''/g'| step^2 of the next iterate (an upper bound for Halley's) is below ROOT_ANGLE_TOL. cos and sin of
+ * each iterate are the previous ones rotated by the step (a Taylor series once the step is small): no trig
+ * calls after the first step.
+ */
+function refine(): void {
+  let a = GEO[Geo.lo]!, b = GEO[Geo.hi]!;
+  const aNeg = GEO[Geo.gLo]! < 0;
+  let x = GEO[Geo.mid]!, c = GEO[Geo.cMid]!, sn = GEO[Geo.sMid]!;
+  let gx = GEO[Geo.gMid]!, dg = GEO[Geo.dgMid]!, ddg = GEO[Geo.ddgMid]!;
   for (let it = 0; it < 100; it++) {
-    evalTrig4(G, Math.cos(x), Math.sin(x), EV);
-    const gx = EV[0]!, dg = EV[1]!;
     // G is normalised (sum of |coefficients| = 1): below this its sign is rounding noise. A root of high
     // order (A running along B's axis) reaches that level far from the root: finish on f itself.
     if (Math.abs(gx) <= G_NOISE) {
-      return Math.abs(dg) < FLAT_SLOPE ? goldenOnF(Math.max(a, x - FLAT_WINDOW), Math.min(b, x + FLAT_WINDOW)) : x;
+      if (Math.abs(dg) < FLAT_SLOPE) rootAt(goldenOnF(Math.max(a, x - FLAT_WINDOW), Math.min(b, x + FLAT_WINDOW)));
+      else setRoot(x, c, sn);
+      return;
     }
     if ((gx < 0) === aNeg) a = x;
     else b = x;
-    let next = dg !== 0 ? x - gx / dg : 0.5 * (a + b);
-    if (!(next > a && next < b)) next = 0.5 * (a + b);
-    if (Math.abs(next - x) <= ROOT_ANGLE_TOL || b - a <= ROOT_ANGLE_TOL) return next;
+    const den = 2 * dg * dg - gx * ddg;
+    let next = den !== 0 ? x - (2 * gx * dg) / den : 0.5 * (a + b);
+    let bisected = false;
+    if (!(next > a && next < b)) { next = 0.5 * (a + b); bisected = true; }
+    const d = next - x;
+    const step = Math.abs(d);
+    // cos and sin of next: rotate (c, sn) by d.
+    let cd: number, sd: number;
+    if (step < 0.05) {
+      // Taylor series of cos d and sin d; the first omitted terms are below 1e-22 for |d| < 0.05.
+      const d2 = d * d;
+      cd = 1 - d2 * (1 / 2 - d2 * (1 / 24 - d2 * (1 / 720 - d2 * (1 / 40320 - d2 * (1 / 3628800)))));
+      sd = d * (1 - d2 * (1 / 6 - d2 * (1 / 120 - d2 * (1 / 5040 - d2 * (1 / 362880)))));
+    } else {
+      cd = Math.cos(d); sd = Math.sin(d);
+    }
+    const cn = c * cd - sn * sd;
+    sn = sn * cd + c * sd;
+    c = cn;
+    if (step <= ROOT_ANGLE_TOL || b - a <= ROOT_ANGLE_TOL
+      || (!bisected && Math.abs(ddg) * step * step <= ROOT_ANGLE_TOL * Math.abs(dg))) {
+      setRoot(next, c, sn);
+      return;
+    }
     x = next;
+    evalTrig4(G, c, sn, EV);
+    gx = EV[0]!; dg = EV[1]!; ddg = EV[2]!;
   }
-  return x;
+  setRoot(x, c, sn);
+}
+
+function setRoot(x: number, c: number, sn: number): void {
+  GEO[Geo.root] = x; GEO[Geo.cRoot] = c; GEO[Geo.sRoot] = sn;
+}
+
+/** Root at angle s (cold paths): its cosine and sine from the angle. */
+function rootAt(s: number): void {
+  setRoot(s, Math.cos(s), Math.sin(s));
 }
 
 function writeContact(out: Float64Array, k: number, s: number): void {
+  rootAt(s);
+  writeRoot(out, k);
+}
+
+/** Contact k at angle GEO[Geo.root] of A (cosine and sine in GEO too): its angle, distance and both points. */
+function writeRoot(out: Float64Array, k: number): void {
+  const s = GEO[Geo.root]!, c = GEO[Geo.cRoot]!, sn = GEO[Geo.sRoot]!;
   const e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Bx = GEO[Geo.Bx]!, By = GEO[Geo.By]!, Bz = GEO[Geo.Bz]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, Ax = GEO[Geo.Ax]!, Ay = GEO[Geo.Ay]!, Az = GEO[Geo.Az]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
-  const c = Math.cos(s), sn = Math.sin(s);
   const px = Ax + rA * (e1x * c + e2x * sn), py = Ay + rA * (e1y * c + e2y * sn), pz = Az + rA * (e1z * c + e2z * sn);
   const dx = px - Bx, dy = py - By, dz = pz - Bz;
   const z = dx * Nx + dy * Ny + dz * Nz;

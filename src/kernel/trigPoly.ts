@@ -1,49 +1,23 @@
 // Real trigonometric polynomials stored as [c0, a1, b1, a2, b2, ...] meaning
 // c0 + sum_k (a_k cos ks + b_k sin ks). Fixed small degrees; no allocation in the hot path.
 
-/** out = x * y (product-to-sum). out must hold 2*(degX+degY)+1 entries and must not alias x or y. */
-export function mulTrig(
-  x: ArrayLike<number>, degX: number,
-  y: ArrayLike<number>, degY: number,
-  out: Float64Array,
-): void {
-  const degOut = degX + degY;
-  for (let i = 0; i <= 2 * degOut; i++) out[i] = 0;
-  const x0 = x[0]!, y0 = y[0]!;
-  out[0] = x0 * y0;
-  for (let n = 1; n <= degY; n++) {
-    out[2 * n - 1]! += x0 * y[2 * n - 1]!;
-    out[2 * n]! += x0 * y[2 * n]!;
-  }
-  for (let m = 1; m <= degX; m++) {
-    const xa = x[2 * m - 1]!, xb = x[2 * m]!;
-    out[2 * m - 1]! += y0 * xa;
-    out[2 * m]! += y0 * xb;
-    for (let n = 1; n <= degY; n++) {
-      const ya = y[2 * n - 1]!, yb = y[2 * n]!;
-      // cos m cos n = (cos(m-n) + cos(m+n))/2 ; sin m sin n = (cos(m-n) - cos(m+n))/2
-      // cos m sin n = (sin(m+n) - sin(m-n))/2 ; sin m cos n = (sin(m+n) + sin(m-n))/2
-      const cosDiff = 0.5 * (xa * ya + xb * yb);
-      const cosSum = 0.5 * (xa * ya - xb * yb);
-      const sinSum = 0.5 * (xa * yb + xb * ya);
-      const sinDiff = 0.5 * (xb * ya - xa * yb); // coefficient of sin((m-n)s)
-      addTerm(out, m + n, cosSum, sinSum);
-      addTerm(out, m - n, cosDiff, sinDiff);
-    }
-  }
-}
-
-/** out += c cos(ks) + s sin(ks) for any integer k (cos is even, sin odd). */
-function addTerm(out: Float64Array, k: number, c: number, s: number): void {
-  if (k === 0) {
-    out[0]! += c;
-  } else if (k > 0) {
-    out[2 * k - 1]! += c;
-    out[2 * k]! += s;
-  } else {
-    out[-2 * k - 1]! += c;
-    out[-2 * k]! -= s;
-  }
+/**
+ * out = x * y for two degree-2 polynomials (the kernel's set-up), by the product-to-sum identities
+ * cos m cos n = (cos(m-n) + cos(m+n))/2 and the like, unrolled. out must hold 9 entries and must not alias x or y.
+ */
+export function mulTrig22(x: ArrayLike<number>, y: ArrayLike<number>, out: Float64Array): void {
+  const x0 = x[0]!, x1 = x[1]!, x2 = x[2]!, x3 = x[3]!, x4 = x[4]!;
+  const y0 = y[0]!, y1 = y[1]!, y2 = y[2]!, y3 = y[3]!, y4 = y[4]!;
+  // (1,1) -> cos 0 and 2s; (2,2) -> cos 0 and 4s; (1,2) and (2,1) -> 1s and 3s.
+  out[0] = x0 * y0 + 0.5 * (x1 * y1 + x2 * y2 + x3 * y3 + x4 * y4);
+  out[1] = x0 * y1 + y0 * x1 + 0.5 * (x1 * y3 + x2 * y4 + x3 * y1 + x4 * y2);
+  out[2] = x0 * y2 + y0 * x2 + 0.5 * (x1 * y4 - x2 * y3 + x4 * y1 - x3 * y2);
+  out[3] = x0 * y3 + y0 * x3 + 0.5 * (x1 * y1 - x2 * y2);
+  out[4] = x0 * y4 + y0 * x4 + 0.5 * (x1 * y2 + x2 * y1);
+  out[5] = 0.5 * (x1 * y3 - x2 * y4 + x3 * y1 - x4 * y2);
+  out[6] = 0.5 * (x1 * y4 + x2 * y3 + x3 * y2 + x4 * y1);
+  out[7] = 0.5 * (x3 * y3 - x4 * y4);
+  out[8] = 0.5 * (x3 * y4 + x4 * y3);
 }
 
 /** Value and first three derivatives of a degree-4 trig polynomial given cos s, sin s (angle addition). */
