@@ -17,7 +17,7 @@ export { parseSymmetryOption, symmetrize, symmetryDeparture } from './model/symm
 export { solveInflate } from './optimize/solve.js';
 export { runMultistart } from './optimize/multistart.js';
 export { packingBound, packingRadius } from './optimize/bound.js';
-export { verifyConfiguration } from './analyze/verify.js';
+export { verifyConfiguration } from './check/verify.js';
 export { compare } from './analyze/compare.js';
 export { symmetryBreakingSweep } from './analyze/sweep.js';
 export { analyzePlay, type PlayReport } from './analyze/play.js';

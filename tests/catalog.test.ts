@@ -5,7 +5,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { coreDistance, gaussLinking } from '../src/analyze/verify.js';
+import { coreDistance, gaussLinking } from '../src/check/verify.js';
 import {
   catalogEntries, catalogLayout, knownOptimum, linkingPattern, naturalSymmetry, parseCatalogSpec,
 } from '../src/model/catalog.js';

@@ -7,9 +7,10 @@ import { describe, expect, it } from 'vitest';
 import { main } from '../cli/main.js';
 import type { Io } from '../cli/io.js';
 import { alignRings, type PoseLike } from '../src/analyze/align.js';
-import { compare, compareSymmetry, naturalSymmetry } from '../src/analyze/compare.js';
+import { compare, compareSymmetry, detectSymmetry } from '../src/analyze/compare.js';
+import { naturalSymmetry, parseCatalogSpec } from '../src/model/catalog.js';
 import type { SweepOutcome } from '../src/analyze/sweep.js';
-import { verifyConfiguration } from '../src/analyze/verify.js';
+import { verifyConfiguration } from '../src/check/verify.js';
 import { InputError } from '../src/model/errors.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { ringOrbits, symmetryDeparture } from '../src/model/symmetry.js';
@@ -86,8 +87,25 @@ describe('which symmetry compare breaks', () => {
   it('takes the catalogue layout\'s own group: dihedral D_2 for the Hopf link, D_3 for torus:3', () => {
     // N Hopf fibres through N equally spaced points are carried into each other by the N-fold turn and
     // by the half-turns about the perpendicular axes (dihedral D_N) — the catalogue's construction.
-    expect(naturalSymmetry(resolveSpec('hopf').layout.rings)).toMatchObject({ type: 'dihedral', order: 2 });
-    expect(naturalSymmetry(resolveSpec('torus:3').layout.rings)).toMatchObject({ type: 'dihedral', order: 3 });
+    expect(detectSymmetry(resolveSpec('hopf').layout.rings)).toMatchObject({ type: 'dihedral', order: 2 });
+    expect(detectSymmetry(resolveSpec('torus:3').layout.rings)).toMatchObject({ type: 'dihedral', order: 3 });
+  });
+
+  it('the group read off the poses is the catalogue construction\'s group, for every family', () => {
+    // Two routes to one fact: the catalogue states the group it builds (naturalSymmetry), detection finds
+    // the largest group the generated rings actually have. A larger detected group would mean the
+    // construction is more symmetric than documented; a smaller one, a construction bug.
+    for (const spec of ['hopf', 'chain:3', 'chain:4', 'necklace:3', 'necklace:4', 'necklace:5', 'necklace:6', 'star:3', 'star:4', 'torus:3', 'torus:4', 'torus:5']) {
+      const built = naturalSymmetry(parseCatalogSpec(spec));
+      const found = detectSymmetry(resolveSpec(spec).layout.rings);
+      expect(found && `${found.type}:${found.order}`, spec).toBe(`${built.type}:${built.order}`);
+    }
+  });
+
+  it('a catalogue start with unequal radii keeps only the group its radii allow', () => {
+    // torus:3 with one ring larger: the 3-fold turn no longer maps rings onto rings of the same size.
+    const found = detectSymmetry(resolveSpec('torus:3', { radii: [1.3, 1, 1] }).layout.rings);
+    expect(found === undefined || found.order < 3).toBe(true);
   });
 
   it('refuses none, and a layout file with no symmetry section, with a message that says what to pass', () => {

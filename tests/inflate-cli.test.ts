@@ -8,7 +8,7 @@ import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { main } from '../cli/main.js';
 import type { Io } from '../cli/io.js';
-import { verifyRings } from '../src/analyze/verify.js';
+import { verifyRings } from '../src/check/verify.js';
 import type { SolveResult } from '../src/model/result.js';
 import { readResultFile } from '../src/model/resultFile.js';
 

@@ -3,7 +3,7 @@
 // checker. Reference values: tight Hopf link tube R/2 (Cantarella, Kusner, Sullivan 2002); 3-ring chain
 // R/3 (circle-packing bound for k = 2, r_2 = 1/2, Graham et al. 1998, attained by the flat chain).
 import { describe, expect, it } from 'vitest';
-import { verifyRings } from '../src/analyze/verify.js';
+import { verifyRings } from '../src/check/verify.js';
 import { InputError } from '../src/model/errors.js';
 import type { SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';

@@ -4,7 +4,7 @@
 // circles), the disk-crossing definition of the linking number (Rolfsen, Knots and Links, 5D), and the
 // kernel and topology modules as independent implementations to agree with.
 import { describe, expect, it } from 'vitest';
-import { coreDistance, gaussLinking, sameLinkUpToReversal, verifyConfiguration, verifyRings, type CheckRing } from '../src/analyze/verify.js';
+import { coreDistance, gaussLinking, sameLinkUpToReversal, verifyConfiguration, verifyRings, type CheckRing } from '../src/check/verify.js';
 import { ringDistance } from '../src/kernel/index.js';
 import type { Vec3 } from '../src/model/types.js';
 import { linkingNumber } from '../src/topology/index.js';

@@ -1,5 +1,5 @@
 // The weave catalogue and the periodic model, without solving: start poses carry the pattern each weave
-// is named for, checked with the independent Gauss linking integral (Gauss 1833, src/analyze/verify.ts)
+// is named for, checked with the independent Gauss linking integral (Gauss 1833, src/check/verify.ts)
 // on a block of cells; the periodic helpers; the layout-file route; wire densities and weights.
 // Pattern facts are the weavers' definitions (common practice, no source): "N-in-1" means N rings pass
 // through each ring (European 4-in-1: 4; the flat ring of Japanese 6-in-1: 6, its connectors 2;
@@ -8,7 +8,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { gaussLinkingMatrix } from '../src/analyze/verify.js';
+import { gaussLinkingMatrix } from '../src/check/verify.js';
 import { InputError } from '../src/model/errors.js';
 import {
   blockLinking, canonicalPair, cellMeasure, expandCells, latticeOffset, pairKey, periodicLinks,

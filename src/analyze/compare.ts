@@ -5,7 +5,7 @@
 // the symmetry-breaking curve (sweep.ts).
 import { alignRings, applyAlignment } from './align.js';
 import { symmetryBreakingSweep, type SweepOutcome, type SweepProgress } from './sweep.js';
-import { verifyConfiguration } from './verify.js';
+import { verifyConfiguration } from '../check/verify.js';
 import { InputError } from '../model/errors.js';
 import type { CompareResult, SolveResult } from '../model/result.js';
 import type { ResolvedSpec } from '../model/spec.js';
@@ -164,7 +164,7 @@ export function compareSymmetry(resolved: ResolvedSpec, option: Symmetry | null 
   if (option === null || option?.type === 'none') {
     throw new InputError('--symmetry none: compare needs a symmetry to break; use --symmetry cyclic:N or dihedral:N (for example cyclic:3)');
   }
-  const chosen = option ?? resolved.layout.symmetry ?? (resolved.source === 'catalog' ? naturalSymmetry(resolved.layout.rings) : undefined);
+  const chosen = option ?? resolved.layout.symmetry ?? (resolved.source === 'catalog' ? detectSymmetry(resolved.layout.rings) : undefined);
   if (!chosen || chosen.type === 'none') {
     throw new InputError(
       `${resolved.spec}: no symmetry to compare against (the layout has no "symmetry" section); ` +
@@ -186,9 +186,11 @@ export function compareSymmetry(resolved: ResolvedSpec, option: Symmetry | null 
 
 /**
  * Largest rotation group about the z axis through the origin (catalogue convention) under which the
- * rings are exactly symmetric; dihedral:k (2k elements) beats cyclic:k (k elements).
+ * rings are exactly symmetric; dihedral:k (2k elements) beats cyclic:k (k elements). Read off the poses and
+ * radii, so a catalogue start with unequal radii gets the group it really has; with equal radii it is the
+ * construction's group, naturalSymmetry in src/model/catalog.ts (the tests check the two agree).
  */
-export function naturalSymmetry(rings: readonly Ring[]): Symmetry | undefined {
+export function detectSymmetry(rings: readonly Ring[]): Symmetry | undefined {
   const n = rings.length;
   const scale = Math.max(...rings.map((r) => r.radius));
   let best: Symmetry | undefined;

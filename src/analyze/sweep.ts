@@ -10,7 +10,7 @@
 // is kept as the value at this ε (an honest lower bound on the curve, flagged 'stalled'). At the last ε
 // the aligned unconstrained optimum is itself feasible, so the curve ends at the unconstrained value.
 // Every point's departure is re-measured here and both ends are re-checked by verify.ts.
-import { verifyConfiguration } from './verify.js';
+import { verifyConfiguration } from '../check/verify.js';
 import { alignRings, applyAlignment } from './align.js';
 import type { ResultRing, SolveResult, SweepPoint, Verification } from '../model/result.js';
 import { ringOrbits, symmetryDeparture, type RingOrbits } from '../model/symmetry.js';

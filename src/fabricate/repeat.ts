@@ -1,6 +1,6 @@
 // Expand a periodic (weave) result into a block of cells, so the report, meshes and tracks can show several
 // repeats: the block is an ordinary finite result (rings, linking, contacts) re-verified as a whole.
-import { verifyConfiguration } from '../analyze/verify.js';
+import { verifyConfiguration } from '../check/verify.js';
 import { blockLinking, blockShifts, expandCells, latticeOffset } from '../model/periodic.js';
 import { InputError } from '../model/errors.js';
 import type { ResultContact, ResultRing } from '../model/result.js';

@@ -1,7 +1,7 @@
 // Multistart inflation: run several seeded starts on the worker pool, check every outcome with the
-// independent invariant checker (src/analyze/verify.ts), keep the best verified one and package it as
+// independent invariant checker (src/check/verify.ts), keep the best verified one and package it as
 // a result file (format thickring-result/1).
-import { verifyConfiguration, CLEARANCE_TOLERANCE } from '../analyze/verify.js';
+import { verifyConfiguration, CLEARANCE_TOLERANCE } from '../check/verify.js';
 import { RESULT_FORMAT, type Certificate, type ResultRing, type SolveResult, type StartRecord, type Verification } from '../model/result.js';
 import type { Ring, SolveStatus } from '../model/types.js';
 import { ringOrbits } from '../model/symmetry.js';

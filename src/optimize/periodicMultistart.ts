@@ -1,8 +1,8 @@
 // Multistart for weaves: seeded starts of the periodic solve on the worker pool (a WebAssembly abort ends
-// only its worker), every outcome re-checked by the independent checker (src/analyze/verify.ts) on a block
+// only its worker), every outcome re-checked by the independent checker (src/check/verify.ts) on a block
 // of cells (3 along a chain, 3 × 3 of a sheet: every pair in the block, linking as the pattern intends,
 // tube <= R), and the best verified one packaged as a result file with the periodic figures.
-import { verifyConfiguration, CLEARANCE_TOLERANCE } from '../analyze/verify.js';
+import { verifyConfiguration, CLEARANCE_TOLERANCE } from '../check/verify.js';
 import { blockLinking, cellMeasure, expandCells, periodicKind, type PeriodicKind, type PeriodicLink } from '../model/periodic.js';
 import type { WeaveWeight } from '../model/periodicMaterials.js';
 import { RESULT_FORMAT, type Bound, type Certificate, type ResultRing, type SolveResult, type StartRecord, type Verification } from '../model/result.js';
