@@ -297,6 +297,28 @@ describe('first-order condition of a strut (a closest pair is perpendicular to b
   });
 });
 
+describe('extreme proportions against the brute-force reference', () => {
+  it('radius ratios up to 1e3 and rings up to 1e4 radii apart: same global distance and minima', () => {
+    const r = rng(31);
+    for (let i = 0; i < 600; i++) {
+      const far = i % 2 === 1;
+      const ra = far ? 0.5 + r() : 10 ** (3 * r() - 1.5), rb = far ? 0.5 + r() : 10 ** (3 * r() - 1.5);
+      const sep = far ? 10 ** (1 + 3 * r()) : 1;
+      const a = circle([0, 0, 0], randomUnit(r), ra);
+      const b = circle([sep * (2 * r() - 1), sep * (2 * r() - 1), sep * (2 * r() - 1)], randomUnit(r), rb);
+      const res = ringDistance(a, b);
+      const ref = refMinima(a, b, 4096);
+      const scale = ra + rb + dist3(a.center, b.center);
+      expect(Math.abs(res.distance - Math.min(...ref.map((m) => m.d))), `pair ${i}`).toBeLessThan(1e-10 * scale);
+      if (res.continuum) continue;
+      for (const m of ref) {
+        if (m.depth < 1e-12 * scale * scale) continue;
+        expect(res.contacts.some((c) => Math.abs(c.distance - m.d) < 1e-10 * scale), `pair ${i}: minimum d=${m.d} missing`).toBe(true);
+      }
+    }
+  });
+});
+
 describe('invariance: rotation, translation, scaling by 1e±3, swapping A and B', () => {
   it('gives the same distance and the same set of closest pairs', () => {
     const r = rng(77);
