@@ -7,7 +7,7 @@ import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
 import { isPeriodicArg } from '../src/model/periodicSpec.js';
-import type { SolveResult } from '../src/model/result.js';
+import { BOUND_ATTAINED, optimalityOf, optimalityText, type SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { runMultistart, type StartProgress } from '../src/optimize/multistart.js';
 import type { PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
@@ -154,7 +154,6 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
 }
 
 /** Relative gap to the packing bound below which the bound counts as attained (rounding of a 1e-9 solve). */
-const BOUND_ATTAINED = 1e-9;
 
 /** Weaves: the lattice shift of the copy of ring b a contact lies on, e.g. "[-1,0]" (none in the cell). */
 function copyLabel(r: SolveResult, k: number): string {
@@ -170,7 +169,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const scale = Math.max(...r.rings.map((x) => x.radius));
   const lines: string[] = [];
   lines.push(`thickring inflate ${r.spec}: ${r.rings.length} rings, lengths in ${u}`);
-  lines.push(`Status: ${r.status}${r.certificate.certified ? ' (certified optimum)' : ''}`);
+  lines.push(`Status: ${r.status}; ${optimalityText(optimalityOf(r))}`);
   lines.push(`Tube radius: ${L(r.tube)} (wire diameter ${L(2 * r.tube)})`);
   lines.push(`Tube / smallest core radius: ${num(r.tubeOverCore)} (dimensionless)`);
   lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(r.aspectRatio)} (dimensionless)`);

@@ -1,7 +1,7 @@
 // The standalone HTML report: one file, plotting library inlined, no network access, every text
 // escaped. Built from a result file (inflate or compare) and, when available, a play analysis.
 import { CAUTIONS } from '../src/fabricate/cautions.js';
-import type { CompareResult, SolveResult } from '../src/model/result.js';
+import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
 import { escapeHtml as h, jsonForScript, scriptSource } from './escape.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, vec } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
@@ -203,7 +203,7 @@ function cards(result: SolveResult, compare: CompareResult | null): string {
   }
   list.push(card('gap to bound', result.bound ? percent(result.bound.gap) : 'n/a',
     result.bound ? `bound ${num(result.bound.tube)} ${unit}` : 'no bound for this layout'));
-  list.push(card('status', result.status, result.certificate.certified ? 'certified optimum' : 'not certified'));
+  list.push(card('status', result.status, optimalityText(optimalityOf(result))));
   return `<div class="cards">${list.join('')}</div>`;
 }
 
@@ -217,7 +217,7 @@ function statusBadge(status: string): string {
 
 function cell(label: string, value: string): string {
   if (label === 'status') return statusBadge(value);
-  if (label === 'certified optimum') return badge(value, value === 'yes' ? 'ok' : 'warn');
+  if (label === 'optimality') return badge(value, value === optimalityText('none') ? 'warn' : 'ok');
   if (label === 'independent check') return badge(value, value === 'passed' ? 'ok' : 'bad');
   return h(value);
 }

@@ -1,5 +1,5 @@
 // Plain-text terminal summary of a result (inflate or compare), same figures as the HTML report.
-import type { CompareResult, SolveResult } from '../src/model/result.js';
+import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, signed, withUnit } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
 
@@ -13,7 +13,7 @@ export function figureRows(r: SolveResult): [string, string, string][] {
   const okStarts = r.starts.filter((s) => s.status === 'optimal').length;
   return [
     ['status', r.status, ''],
-    ['certified optimum', r.certificate.certified ? 'yes' : 'no', ''],
+    ['optimality', optimalityText(optimalityOf(r)), ''],
     ['tube radius r', num(r.tube), unit],
     ['tube / smallest core radius', num(r.tubeOverCore), DIMENSIONLESS],
     ['aspect ratio (inner diam. / wire diam.)', num(r.aspectRatio, 4), DIMENSIONLESS],

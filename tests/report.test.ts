@@ -4,6 +4,7 @@ import { buildReportHtml } from '../reports/html.js';
 import { escapeHtml, jsonForScript, plotlyText } from '../reports/escape.js';
 import { formatSummary } from '../reports/summary.js';
 import { circlePoints, torusGrid } from '../reports/torus.js';
+import { optimalityOf } from '../src/model/result.js';
 import { hopfResult, torus3Compare } from './reportFixture.js';
 
 // A stand-in for the plotting library: the builder must inline whatever source it is given.
@@ -125,5 +126,20 @@ describe('terminal summary', () => {
   it('gives the tight Hopf link tube R/2 in the file\'s units (Cantarella–Kusner–Sullivan 2002)', () => {
     const text = formatSummary(hopfResult());
     expect(text).toMatch(/tube radius r\s+0\.5\s+mm/);
+  });
+});
+
+describe('what a result may claim about optimality', () => {
+  it('global only where the packing bound is attained and the check passed; local for a KKT certificate', () => {
+    // The tight Hopf link attains the packing bound R/2 (Cantarella–Kusner–Sullivan 2002), so its optimum is
+    // global; a certified result below its bound is only a local optimum; a failed check proves nothing global.
+    const hopf = hopfResult();
+    expect(optimalityOf(hopf)).toBe('global');
+    expect(formatSummary(hopf)).toContain('global optimum (packing bound attained)');
+    const below = { ...hopf, bound: { ...hopf.bound!, gap: 0.05 } };
+    expect(optimalityOf(below)).toBe('local');
+    expect(formatSummary(below)).toContain('certified local optimum');
+    expect(optimalityOf({ ...hopf, verification: { ...hopf.verification, ok: false } })).toBe('local');
+    expect(optimalityOf({ ...below, certificate: { ...below.certificate, certified: false } })).toBe('none');
   });
 });

@@ -122,3 +122,22 @@ export interface CompareResult extends SolveResult {
   changes: CompareRingChange[];
   sweep: SweepPoint[];
 }
+
+/** Relative gap to the packing bound below which the bound counts as attained (the solve's own tolerance). */
+export const BOUND_ATTAINED = 1e-9;
+
+/**
+ * What a result proves. 'global': the independent check passed and the packing bound, which holds for every
+ * arrangement with this linking, is attained. 'local': the KKT certificate holds (no small motion of the rings
+ * thickens the tube), which says nothing about arrangements far away. 'none': neither.
+ */
+export type Optimality = 'global' | 'local' | 'none';
+
+export function optimalityOf(r: Pick<SolveResult, 'bound' | 'verification' | 'certificate'>): Optimality {
+  if (r.verification.ok && r.bound && r.bound.gap <= BOUND_ATTAINED) return 'global';
+  return r.certificate.certified ? 'local' : 'none';
+}
+
+export function optimalityText(o: Optimality): string {
+  return o === 'global' ? 'global optimum (packing bound attained)' : o === 'local' ? 'certified local optimum' : 'not certified';
+}
