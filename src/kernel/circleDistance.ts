@@ -366,8 +366,8 @@ function isolateMinima(polishOnH: boolean, out: Float64Array): number {
     if (visits > MAX_INTERVAL_VISITS || top + 12 > STACK.length) return -1; // hand over to the sampled regime
     const floor = level + 1 >= MAX_LEVEL;
     if (unique || floor) {
-      // One root here (or the switch width is reached): read h at both ends.
-      // h at both ends from the precomputed forms (hAtCS inlined by hand: a call would box its doubles).
+      // One root here (or the switch width is reached): read h at the ends, from the linear forms of hAtCS
+      // (inlined by hand: a call would box its doubles).
       const cr = FULL_C[level]!, sr = FULL_S[level]!;
       const cl = cm * cr + sm * sr, sl = sm * cr - cm * sr, ch = cm * cr - sm * sr, sh = sm * cr + cm * sr;
       const u0x = GEO[Geo.U0x]!, u0y = GEO[Geo.U0y]!, u0z = GEO[Geo.U0z]!;
@@ -379,7 +379,7 @@ function isolateMinima(polishOnH: boolean, out: Float64Array): number {
       const ppl = pb * cl - pa * sl;
       const hLo = ppl * Math.sqrt(lx * lx + ly * ly + lz * lz)
         - rB * (ppl - 2 * (zD + za * cl + zb * sl) * (zb * cl - za * sl));
-      // h > 0 at the lower end: no minimum starts here (nothing below acts on it unless at the switch width).
+      // h > 0 at the lower end: every case below needs h <= 0 there, except the switch-width one.
       if (hLo > hNoise && !floor) continue;
       const hx = u0x + u1x * ch + u2x * sh, hy = u0y + u1y * ch + u2y * sh, hz = u0z + u1z * ch + u2z * sh;
       const pph = pb * ch - pa * sh;
