@@ -6,16 +6,15 @@
 // variables are displacements in layout units (δn scaled by R), so one trust radius fits all of them.
 // Rigid motions of the whole arrangement that commute with the group (all six without symmetry, the
 // screw along the axis with C_N, none with D_N) are removed by fixing the variables they move most
-// (complete pivoting), so the remaining ones are a gauge-free chart.
+// (complete pivoting, gauge.ts), so the remaining ones are a gauge-free chart.
 import type { Ring, Vec3 } from '../model/types.js';
 import { mulVec, mulVecT, type Mat3, type RingOrbits } from '../model/symmetry.js';
 import { planeBasis } from '../model/vec.js';
+import { freeVariables, gaugePivotColumns, rigidMotionGenerator } from './gauge.js';
 import { expMap, leftJacobian } from './rotation.js';
 
 /** Basis vectors shorter than this after projection are dropped (the projected space is smaller). */
 const BASIS_TOL = 1e-8;
-/** Gauge pivots below this fraction of the largest generator entry are rank deficiency, not a gauge. */
-const GAUGE_PIVOT_TOL = 1e-9;
 
 export interface RepBlock {
   ring: number;
@@ -101,17 +100,8 @@ export function buildChart(rings: readonly Ring[], orbits: RingOrbits, gauge: Ga
   }
   const nFull = offset;
   const fixed = gauge ? gaugeFixedVariables(rings, gauge, reps, nFull) : [];
-  const freeOf = new Int32Array(nFull).fill(-1);
-  const freeList: number[] = [];
-  for (let k = 0; k < nFull; k++) {
-    if (fixed.includes(k)) continue;
-    freeOf[k] = freeList.length;
-    freeList.push(k);
-  }
-  return {
-    n, base: rings.slice(), e1, e2, reps, repOfRing, matOfRing,
-    origin: [...orbits.origin], nFull, free: Int32Array.from(freeList), freeOf, nFree: freeList.length,
-  };
+  const { free, freeOf, nFree } = freeVariables(nFull, fixed);
+  return { n, base: rings.slice(), e1, e2, reps, repOfRing, matOfRing, origin: [...orbits.origin], nFull, free, freeOf, nFree };
 }
 
 /** Poses at free coordinates z (length chart.nFree). */
@@ -218,43 +208,9 @@ function gaugeFixedVariables(rings: readonly Ring[], group: GaugeGroup, reps: Re
   }
   const gens: Float64Array[] = [];
   for (const f of fixAxes) {
-    for (const kind of ['translate', 'rotate'] as const) {
-      const v = new Float64Array(nFull);
-      for (const rep of reps) {
-        const rc: Vec3 = [rep.c0[0] - o[0], rep.c0[1] - o[1], rep.c0[2] - o[2]];
-        const dc: Vec3 = kind === 'translate' ? f : cross(f, rc);
-        const dn: Vec3 = kind === 'translate' ? [0, 0, 0] : cross(f, rep.n0);
-        rep.bc.forEach((b, k) => (v[rep.offset + k] = dot(dc, b)));
-        rep.bn.forEach((b, k) => (v[rep.offset + rep.bc.length + k] = rep.radius * dot(dn, b)));
-      }
-      gens.push(v);
-    }
+    for (const kind of ['translate', 'rotate'] as const) gens.push(rigidMotionGenerator(reps, f, o, kind, nFull));
   }
-  let scale = 0;
-  for (const g of gens) for (const x of g) scale = Math.max(scale, Math.abs(x));
-  const fixed: number[] = [];
-  const rows = gens.slice();
-  while (rows.length > 0) {
-    let bi = -1, bj = -1, best = GAUGE_PIVOT_TOL * scale;
-    rows.forEach((row, i) => {
-      for (let j = 0; j < nFull; j++) {
-        if (!fixed.includes(j) && Math.abs(row[j]!) > best) {
-          best = Math.abs(row[j]!);
-          bi = i;
-          bj = j;
-        }
-      }
-    });
-    if (bi < 0) break;
-    const pivot = rows[bi]!;
-    rows.splice(bi, 1);
-    for (const row of rows) {
-      const f = row[bj]! / pivot[bj]!;
-      for (let j = 0; j < nFull; j++) row[j] = row[j]! - f * pivot[j]!;
-    }
-    fixed.push(bj);
-  }
-  return fixed;
+  return gaugePivotColumns(gens, nFull);
 }
 
 function conj(M: Mat3, Q: Mat3, v: ArrayLike<number>): Vec3 {
@@ -291,7 +247,4 @@ function sub(a: ArrayLike<number>, b: ArrayLike<number>): Vec3 {
 }
 function scaleV(a: ArrayLike<number>, s: number): Vec3 {
   return [a[0]! * s, a[1]! * s, a[2]! * s];
-}
-function cross(a: ArrayLike<number>, b: ArrayLike<number>): Vec3 {
-  return [a[1]! * b[2]! - a[2]! * b[1]!, a[2]! * b[0]! - a[0]! * b[2]!, a[0]! * b[1]! - a[1]! * b[0]!];
 }

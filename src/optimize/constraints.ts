@@ -12,6 +12,7 @@ import type { Vec3 } from '../model/types.js';
 import { closestPointOnCircle } from '../kernel/index.js';
 import { departureResidual, type RingOrbits } from '../model/symmetry.js';
 import { addRingGradient, ringsOf, type Chart, type Posed } from './chart.js';
+import { trackStrut } from './strutTrack.js';
 
 export type ConstraintKind = 'strut' | 'sample' | 'radius' | 'departure';
 
@@ -37,12 +38,6 @@ export interface DepartureSpec {
   epsilon: number;
 }
 
-/** Newton on the pair angles stops when the step is below this (radians). */
-const ANGLE_STEP_TOL = 1e-15;
-const STRUT_NEWTON_MAX = 40;
-/** A tracked strut that wanders further than this (radians) has vanished or jumped to another minimum. */
-export const STRUT_LOST_ANGLE = 0.5;
-
 /** Re-evaluate a constraint at `posed` (value returned, gradient into con.grad when `withGrad`). NaN if lost. */
 export function evaluate(
   con: Constraint, chart: Chart, posed: Posed, withGrad: boolean, dep: DepartureSpec | null, keepAngles = true,
@@ -67,12 +62,15 @@ export function pointOn(posed: Posed, j: number, th: number, out: Float64Array |
   for (let k = 0; k < 3; k++) out[k] = posed.c[o + k]! + R * (c * posed.e1[o + k]! + s * posed.e2[o + k]!);
 }
 
-/** Material angle of a point on ring j (its projection onto the ring's plane). */
-export function angleOf(posed: Posed, j: number, p: ArrayLike<number>): number {
+/**
+ * Material angle of a point on ring j (its projection onto the ring's plane), or on the image of ring j
+ * displaced by `off` (periodic arrangements).
+ */
+export function angleOf(posed: Posed, j: number, p: ArrayLike<number>, off: ArrayLike<number> | null = null): number {
   const o = 3 * j;
   let x = 0, y = 0;
   for (let k = 0; k < 3; k++) {
-    const d = p[k]! - posed.c[o + k]!;
+    const d = p[k]! - posed.c[o + k]! - (off ? off[k]! : 0);
     x += d * posed.e1[o + k]!;
     y += d * posed.e2[o + k]!;
   }
@@ -93,7 +91,7 @@ function pairValue(con: Constraint, chart: Chart, posed: Posed, withGrad: boolea
   const a = con.a, b = con.b;
   let ta = con.ta, tb = con.tb;
   if (strut) {
-    const r = trackMinimum(posed, a, b, ta, tb);
+    const r = trackStrut(posed.e1, posed.e2, posed.c, 3 * a, 3 * a, posed.R[a]!, posed.c, 3 * b, 3 * b, posed.R[b]!, ta, tb);
     if (r === null) return NaN;
     ta = r[0];
     tb = r[1];
@@ -122,55 +120,6 @@ function pairValue(con: Constraint, chart: Chart, posed: Posed, withGrad: boolea
     addRingGradient(chart, posed, b, u, cross(rb, u), -1, con.grad);
   }
   return d;
-}
-
-/**
- * Local minimum of |pA(θ) - pB(φ)|² near (θ, φ) by damped Newton in the two angles (the Hessian
- * is used when positive definite, a scaled gradient step otherwise). Null when the minimum is lost.
- */
-function trackMinimum(posed: Posed, a: number, b: number, th0: number, ph0: number): [number, number] | null {
-  let th = th0, ph = ph0;
-  const Ra = posed.R[a]!, Rb = posed.R[b]!;
-  const oa = 3 * a, ob = 3 * b;
-  for (let it = 0; it < STRUT_NEWTON_MAX; it++) {
-    const ca = Math.cos(th), sa = Math.sin(th), cb = Math.cos(ph), sb = Math.sin(ph);
-    let gA = 0, gB = 0, aa = 0, bb = 0, ab = 0, dA2 = 0, dB2 = 0;
-    for (let k = 0; k < 3; k++) {
-      const ea = ca * posed.e1[oa + k]! + sa * posed.e2[oa + k]!;
-      const ta = -sa * posed.e1[oa + k]! + ca * posed.e2[oa + k]!;
-      const eb = cb * posed.e1[ob + k]! + sb * posed.e2[ob + k]!;
-      const tb = -sb * posed.e1[ob + k]! + cb * posed.e2[ob + k]!;
-      const D = posed.c[oa + k]! + Ra * ea - posed.c[ob + k]! - Rb * eb;
-      gA += D * Ra * ta;
-      gB -= D * Rb * tb;
-      aa += Ra * Ra * ta * ta;
-      bb += Rb * Rb * tb * tb;
-      ab -= Ra * Rb * ta * tb;
-      dA2 += D * Ra * ea;
-      dB2 += D * Rb * eb;
-    }
-    // Hessian of ½|D|²: pA'' = -(pA - cA), pB'' = -(pB - cB).
-    const h11 = aa - dA2, h22 = bb + dB2, h12 = ab;
-    const det = h11 * h22 - h12 * h12;
-    let dth: number, dph: number;
-    if (h11 > 0 && det > 0) {
-      dth = -(h22 * gA - h12 * gB) / det;
-      dph = -(h11 * gB - h12 * gA) / det;
-    } else {
-      dth = -gA / Math.max(aa, 1e-300);
-      dph = -gB / Math.max(bb, 1e-300);
-    }
-    const step = Math.hypot(dth, dph);
-    if (step > 0.25) {
-      dth *= 0.25 / step;
-      dph *= 0.25 / step;
-    }
-    th += dth;
-    ph += dph;
-    if (step <= ANGLE_STEP_TOL) break;
-  }
-  if (Math.abs(th - th0) > STRUT_LOST_ANGLE || Math.abs(ph - ph0) > STRUT_LOST_ANGLE) return null;
-  return [th, ph];
 }
 
 function departureValue(con: Constraint, chart: Chart, posed: Posed, withGrad: boolean, dep: DepartureSpec): number {

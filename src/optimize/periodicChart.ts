@@ -5,13 +5,12 @@
 // shift s has centre c_j + Σ s_k L_k and ring j's normal, so a function of that image depends on ring j's
 // pose (as if it were ring j) and on every L_k with weight s_k. Rigid motions of the whole pattern (three
 // translations; three rotations, which turn the lattice vectors too) leave every distance unchanged:
-// one variable per motion is fixed by complete pivoting, as chart.ts does, so the chart is gauge-free.
+// one variable per motion is fixed by complete pivoting (gauge.ts, as for chart.ts), so the chart is
+// gauge-free.
 import { trivialOrbits } from '../model/symmetry.js';
 import type { Lattice, Ring, Vec3 } from '../model/types.js';
 import { addRingGradient, buildChart, posedAt, ringsOf, type Chart, type Posed } from './chart.js';
-
-/** Gauge pivots below this fraction of the largest generator entry are rank deficiency, not a gauge. */
-const GAUGE_PIVOT_TOL = 1e-9;
+import { freeVariables, gaugePivotColumns, rigidMotionGenerator } from './gauge.js';
 
 export interface PeriodicChart {
   /** Chart of the cell's ring poses (no symmetry, no gauge: its variables are the first 5m full ones). */
@@ -41,15 +40,8 @@ export function buildPeriodicChart(rings: readonly Ring[], lattice: Lattice): Pe
   const L0 = new Float64Array(3 * K);
   lattice.vectors.forEach((v, k) => L0.set(v, 3 * k));
   const nFull = ring.nFull + 3 * K;
-  const fixed = gaugeFixed(ring, L0, K, nFull);
-  const freeOf = new Int32Array(nFull).fill(-1);
-  const free: number[] = [];
-  for (let k = 0; k < nFull; k++) {
-    if (fixed.has(k)) continue;
-    freeOf[k] = free.length;
-    free.push(k);
-  }
-  return { ring, m, K, L0, nFull, free: Int32Array.from(free), freeOf, nFree: free.length };
+  const { free, freeOf, nFree } = freeVariables(nFull, gaugeFixed(ring, L0, K, nFull));
+  return { ring, m, K, L0, nFull, free, freeOf, nFree };
 }
 
 /** Poses and lattice at free coordinates z. */
@@ -95,21 +87,15 @@ export function toFree(pc: PeriodicChart, full: Float64Array, out: Float64Array)
 // ---- helpers -------------------------------------------------------------------------------------
 
 /** Translations and rotations of the whole pattern as variable vectors; fix one variable per motion. */
-function gaugeFixed(chart: Chart, L0: Float64Array, K: number, nFull: number): Set<number> {
+function gaugeFixed(chart: Chart, L0: Float64Array, K: number, nFull: number): number[] {
   const o: Vec3 = [0, 0, 0];
   for (const rep of chart.reps) for (let k = 0; k < 3; k++) o[k]! += rep.c0[k]! / chart.reps.length;
   const gens: Float64Array[] = [];
   const axes: Vec3[] = [[1, 0, 0], [0, 1, 0], [0, 0, 1]];
   for (const f of axes) {
     for (const kind of ['translate', 'rotate'] as const) {
-      const v = new Float64Array(nFull);
-      for (const rep of chart.reps) {
-        const rc: Vec3 = [rep.c0[0] - o[0], rep.c0[1] - o[1], rep.c0[2] - o[2]];
-        const dc: Vec3 = kind === 'translate' ? f : cross(f, rc);
-        const dn: Vec3 = kind === 'translate' ? [0, 0, 0] : cross(f, rep.n0);
-        rep.bc.forEach((b, k) => (v[rep.offset + k] = dot(dc, b)));
-        rep.bn.forEach((b, k) => (v[rep.offset + rep.bc.length + k] = rep.radius * dot(dn, b)));
-      }
+      const v = rigidMotionGenerator(chart.reps, f, o, kind, nFull);
+      // The lattice turns with the pattern; a translation leaves it alone.
       if (kind === 'rotate') {
         for (let k = 0; k < K; k++) {
           const dl = cross(f, L0.subarray(3 * k, 3 * k + 3));
@@ -119,35 +105,7 @@ function gaugeFixed(chart: Chart, L0: Float64Array, K: number, nFull: number): S
       gens.push(v);
     }
   }
-  let scale = 0;
-  for (const g of gens) for (const x of g) scale = Math.max(scale, Math.abs(x));
-  const fixed = new Set<number>();
-  const rows = gens.slice();
-  while (rows.length > 0) {
-    let bi = -1, bj = -1, best = GAUGE_PIVOT_TOL * scale;
-    rows.forEach((row, i) => {
-      for (let j = 0; j < nFull; j++) {
-        if (!fixed.has(j) && Math.abs(row[j]!) > best) {
-          best = Math.abs(row[j]!);
-          bi = i;
-          bj = j;
-        }
-      }
-    });
-    if (bi < 0) break;
-    const pivot = rows[bi]!;
-    rows.splice(bi, 1);
-    for (const row of rows) {
-      const f = row[bj]! / pivot[bj]!;
-      for (let j = 0; j < nFull; j++) row[j] = row[j]! - f * pivot[j]!;
-    }
-    fixed.add(bj);
-  }
-  return fixed;
-}
-
-function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
-  return a[0]! * b[0]! + a[1]! * b[1]! + a[2]! * b[2]!;
+  return gaugePivotColumns(gens, nFull);
 }
 
 function cross(a: ArrayLike<number>, b: ArrayLike<number>): Vec3 {

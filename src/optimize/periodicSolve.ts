@@ -2,12 +2,11 @@
 // lattice vectors (periodicProblem.ts). The method is that of solve.ts on a periodic chart: at the current
 // arrangement the kernel finds every strut between a cell ring and every image within reach; the struts
 // are linearised (images chained to their ring and to the lattice vectors) and the proximal QP of
-// localStep.ts proposes a step (HiGHS bounded in time), judged on the
-// exact kernel (true tube, linked pairs unchanged) with a trust radius. Once the predicted gain is small,
-// Newton on the KKT system (periodicPolish.ts) finishes and non-negative strut forces (certificate.ts)
-// certify a Kuhn–Tucker point. The second-order test and the saddle escape of solve.ts are not done here.
+// localStep.ts proposes a step (HiGHS bounded in time), judged on the exact kernel (true tube, linked pairs
+// unchanged) with a trust radius (the settings of solve.ts, shared in trustRegion.ts). Once the predicted
+// gain is small, Newton on the KKT system (periodicPolish.ts) finishes and non-negative strut forces
+// (certificate.ts) certify a Kuhn–Tucker point. The second-order test and the saddle escape of solve.ts are not done here.
 import { InputError } from '../model/errors.js';
-import type { Certificate } from '../model/result.js';
 import { periodicLinks, sameLinks } from '../model/periodic.js';
 import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
@@ -16,27 +15,17 @@ import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
 import { seededRandom } from './perturb.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from './periodicChart.js';
 import {
-  evaluatePeriodic, newPeriodicConstraint, periodicTube, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
+  evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
 } from './periodicConstraints.js';
 import { polishPeriodic } from './periodicPolish.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
+import { maxViolation, trueTube } from './scan.js';
+import {
+  ACCEPT_RATIO, ACTIVE_TOLS, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, GROW_RATIO, MARGIN_BOXES, MAX_STEP_FAILURES,
+  PERTURB_RETRIES, POLISH_LOSS_REL, POLISH_TRIGGER_START, copyRing, noCertificate, withTubes,
+} from './trustRegion.js';
 
-/** First proximal radius and its cap, and the cap of the step box, relative to the smallest core radius. */
-const DELTA_START_REL = 0.05;
-const DELTA_MAX_REL = 1e4;
-const BOX_MAX_REL = 0.25;
-const DELTA_MIN_REL = 1e-13;
-/** Constraints within this many step boxes of touching enter the local model. */
-const MARGIN_BOXES = 8;
-const ACCEPT_RATIO = 0.1;
-const GROW_RATIO = 0.75;
-const POLISH_TRIGGER_START = 1e-4;
-/** Slack thresholds (relative to the tube) tried for the active set of the polish and the certificate. */
-const ACTIVE_TOLS = [1e-9, 1e-7, 1e-5, 1e-3];
-const POLISH_LOSS_REL = 1e-12;
-const MAX_STEP_FAILURES = 5;
-const PERTURB_RETRIES = 8;
 /** Pairs whose bounding spheres are this many core radii beyond touching distance are not scanned. */
 const SCAN_MARGIN_REL = 2;
 
@@ -161,7 +150,7 @@ function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
   if (latticeReach({ rings, lattice }, margin).some((k) => k > MAX_LATTICE_REACH)) return { rings, lattice, scans: [], t: -Infinity };
   const pairs: PeriodicPair[] = ringPairs({ rings, lattice }, margin).map((p) => ({ a: p.i, b: p.j, shift: p.shift }));
   const scans = scanPeriodic(pp, pairs, ctx.w);
-  return { rings, lattice, scans, t: periodicTube(scans, ctx.R, ctx.w) };
+  return { rings, lattice, scans, t: trueTube(scans, ctx.R, ctx.w) };
 }
 
 /** Struts within `margin` (layout units) of touching, with gradients, and the radius limit. */
@@ -218,9 +207,7 @@ function assess(state: State, ctx: Ctx, polished: Polished | null): Assessed {
   const pc = buildPeriodicChart(state.rings, state.lattice);
   const t = state.t;
   const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * t);
-  let violation = 0;
-  for (const s of state.scans) violation = Math.max(violation, (t * s.c - s.distance) / t);
-  const base = { nFree: pc.nFree, maxViolation: violation, activeTolLimit: Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!), polished: polished !== null };
+  const base = { nFree: pc.nFree, maxViolation: maxViolation(state.scans, t), activeTolLimit: Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!), polished: polished !== null };
   let first: Assessed | null = null;
   for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
     const active = all.filter((k) => k.g - k.c * t <= tol * t);
@@ -259,22 +246,10 @@ function perturb(rings: readonly Ring[], lattice: Lattice, seed: number, size: n
 }
 
 function infeasible(problem: PeriodicProblem, why: string): PeriodicOutcome {
-  const certificate: Certificate = {
-    method: 'kkt-nnls', balanceResidual: Infinity, maxViolation: Infinity, activeStruts: 0, certified: false,
-    note: `No certificate: ${why}.`,
-  };
   return {
     status: 'infeasible', tube: 0, rings: withTubes(problem.rings, 0, problem.tubeRatios), lattice: copyLattice(problem.lattice),
-    iterations: 0, history: [], contacts: [], certificate, message: `infeasible start: ${why}`,
+    iterations: 0, history: [], contacts: [], certificate: noCertificate(why), message: `infeasible start: ${why}`,
   };
-}
-
-function withTubes(rings: readonly Ring[], t: number, w: readonly number[]): Ring[] {
-  return rings.map((r, i) => ({ name: r.name, center: [...r.center], normal: [...r.normal], radius: r.radius, tube: t * w[i]! }));
-}
-
-function copyRing(r: Ring): Ring {
-  return { ...r, center: [...r.center], normal: [...r.normal] };
 }
 
 function copyLattice(l: Lattice): Lattice {

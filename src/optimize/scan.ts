@@ -48,25 +48,36 @@ export function representativePairs(orbits: RingOrbits, n: number): [number, num
 }
 
 export function scanPairs(posed: Posed, pairs: readonly [number, number][], w: readonly number[]): PairScan[] {
-  return pairs.map(([a, b]) => {
-    const oa = 3 * a, ob = 3 * b;
-    const count = circleContacts(
-      posed.c.subarray(oa, oa + 3), posed.n.subarray(oa, oa + 3), posed.R[a]!,
-      posed.c.subarray(ob, ob + 3), posed.n.subarray(ob, ob + 3), posed.R[b]!, OUT,
-    );
-    const continuum = lastContinuum();
-    const contacts: PairContact[] = [];
-    let distance = Infinity;
-    for (let k = 0; k < count; k++) {
-      const o = k * CONTACT_STRIDE;
-      const pa: Vec3 = [OUT[o + 2]!, OUT[o + 3]!, OUT[o + 4]!];
-      const pb: Vec3 = [OUT[o + 5]!, OUT[o + 6]!, OUT[o + 7]!];
-      const d = OUT[o + 1]!;
-      distance = Math.min(distance, d);
-      contacts.push({ ta: angleOf(posed, a, pa), tb: angleOf(posed, b, pb), d, pa, pb });
-    }
-    return { a, b, c: w[a]! + w[b]!, distance, contacts, continuum };
-  });
+  return pairs.map(([a, b]) => ({ a, b, c: w[a]! + w[b]!, ...pairContacts(posed, a, b, null) }));
+}
+
+/**
+ * Every strut of ring a with ring b, or (periodic arrangements) with the image of ring b displaced by
+ * `off`; the angles are material angles of ring a and of ring b (the image has b's frame).
+ */
+export function pairContacts(
+  posed: Posed, a: number, b: number, off: ArrayLike<number> | null,
+): { distance: number; contacts: PairContact[]; continuum: ContinuumKind | null } {
+  const oa = 3 * a, ob = 3 * b;
+  const cb = off === null
+    ? posed.c.subarray(ob, ob + 3)
+    : Float64Array.of(posed.c[ob]! + off[0]!, posed.c[ob + 1]! + off[1]!, posed.c[ob + 2]! + off[2]!);
+  const count = circleContacts(
+    posed.c.subarray(oa, oa + 3), posed.n.subarray(oa, oa + 3), posed.R[a]!,
+    cb, posed.n.subarray(ob, ob + 3), posed.R[b]!, OUT,
+  );
+  const continuum = lastContinuum();
+  const contacts: PairContact[] = [];
+  let distance = Infinity;
+  for (let k = 0; k < count; k++) {
+    const o = k * CONTACT_STRIDE;
+    const pa: Vec3 = [OUT[o + 2]!, OUT[o + 3]!, OUT[o + 4]!];
+    const pb: Vec3 = [OUT[o + 5]!, OUT[o + 6]!, OUT[o + 7]!];
+    const d = OUT[o + 1]!;
+    distance = Math.min(distance, d);
+    contacts.push({ ta: angleOf(posed, a, pa), tb: angleOf(posed, b, pb, off), d, pa, pb });
+  }
+  return { distance, contacts, continuum };
 }
 
 /** Largest common tube the pose allows. */
@@ -75,6 +86,13 @@ export function trueTube(scans: readonly PairScan[], R: ArrayLike<number>, w: re
   for (let i = 0; i < w.length; i++) t = Math.min(t, R[i]! / w[i]!);
   for (const s of scans) t = Math.min(t, s.distance / s.c);
   return t;
+}
+
+/** Worst exact violation relative to the tube (0 when every pair clears t (w_a + w_b)). */
+export function maxViolation(scans: readonly PairScan[], t: number): number {
+  let v = 0;
+  for (const s of scans) v = Math.max(v, (t * s.c - s.distance) / t);
+  return v;
 }
 
 /** Largest tube the ring radii alone allow. */

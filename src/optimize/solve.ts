@@ -5,13 +5,13 @@
 // proximal QP (localStep.ts: nlopt-js SLSQP, HiGHS as companion) proposes a step. The step is judged on the
 // exact kernel: the true tube of the new poses (min over pairs of distance / (w_a + w_b)) against the
 // predicted gain, with the linking matrix (and any departure bound) re-checked; the radius shrinks on
-// rejection and grows on success, so the tube never decreases. Once the predicted gain is small, Newton on
+// rejection and grows on success, so the tube never decreases (settings in trustRegion.ts, shared with
+// periodicSolve.ts). Once the predicted gain is small, Newton on
 // the KKT system of the active set (polish.ts) finishes to ~1e-13, accepted only if the kernel agrees.
 // Non-negative strut forces (certificate.ts) certify a Kuhn–Tucker point, and the curvature of the
 // Lagrangian along the contacts (secondOrder.ts) tells a maximum from a saddle: a symmetric arrangement is
 // often a saddle among all arrangements, and the loop steps off it along the ascent direction (at most
 // MAX_ESCAPES times) and climbs on.
-import type { Certificate } from '../model/result.js';
 import { InputError } from '../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../model/symmetry.js';
 import type { Ring, Symmetry } from '../model/types.js';
@@ -25,36 +25,19 @@ import { perturbRings } from './perturb.js';
 import { polish, restoreContacts } from './polish.js';
 import { criticalCurvature } from './secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
-import { radiusLimit, representativePairs, scanPairs, trueTube, type PairScan } from './scan.js';
+import { maxViolation, radiusLimit, representativePairs, scanPairs, trueTube, type PairScan } from './scan.js';
+import {
+  ACCEPT_RATIO, ACTIVE_TOLS, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, GROW_RATIO, MARGIN_BOXES, MAX_STEP_FAILURES,
+  PERTURB_RETRIES, POLISH_LOSS_REL, POLISH_TRIGGER_START, copyRing, noCertificate, withTubes,
+} from './trustRegion.js';
 
-/** First proximal radius and its cap, and the cap of the step box, relative to the smallest core radius. */
-const DELTA_START_REL = 0.05;
-const DELTA_MAX_REL = 1e4;
-const BOX_MAX_REL = 0.25;
-/** Trust radius below which the outer loop gives up (relative to the smallest core radius). */
-const DELTA_MIN_REL = 1e-13;
-/** Constraints within this many trust radii of touching enter the local model. */
-const MARGIN_TRUST_RADII = 8;
-/** Ratio of actual to predicted gain for acceptance, and for growing the trust radius. */
-const ACCEPT_RATIO = 0.1;
-const GROW_RATIO = 0.75;
-/** Predicted relative gain at which a polish is first tried, and its floor. */
-const POLISH_TRIGGER_START = 1e-4;
-/** Slack thresholds (relative to the tube) tried for the active set of the polish. */
-const ACTIVE_TOLS = [1e-9, 1e-7, 1e-5, 1e-3];
-/** Polished results may lose at most this much (relative) to the outer loop's best tube. */
-const POLISH_LOSS_REL = 1e-12;
 /** Saddles stepped off at most, and the size of that step (relative to the smallest core radius). */
 const MAX_ESCAPES = 3;
 const ESCAPE_STEPS_REL = [1e-2, 3e-2, 1e-1];
 /** Balance residual up to which a near-critical point is searched for a way off a saddle. */
 const ESCAPE_BALANCE_TOL = 1e-3;
-/** Consecutive failed local solves tolerated. */
-const MAX_STEP_FAILURES = 5;
 /** Relative rounding allowed on the departure bound. */
 const DEPARTURE_ROUNDING_REL = 1e-12;
-/** Halvings of the start perturbation tried before giving up on a seeded start. */
-const PERTURB_RETRIES = 8;
 
 export async function solveInflate(problem: InflateProblem, options: SolveOptions): Promise<SolveOutcome> {
   validate(problem);
@@ -70,7 +53,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
     departure = null;
   }
   const orbits: RingOrbits = symmetry ? ringOrbits(problem.rings, symmetry) : trivialOrbits(n);
-  let start: Ring[] = symmetry ? symmetrize(problem.rings, symmetry, orbits) : problem.rings.map(copy);
+  let start: Ring[] = symmetry ? symmetrize(problem.rings, symmetry, orbits) : problem.rings.map(copyRing);
   const dep: DepartureSpec | null = departure ? { orbits: ringOrbits(start, departure.symmetry), epsilon: departure.epsilon } : null;
   const pairs = representativePairs(orbits, n);
   const scale = Math.min(...problem.rings.map((r) => r.radius));
@@ -110,7 +93,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
     const chart = buildChart(state.rings, orbits, ctx.gauge);
     const posed = posedAt(chart, new Float64Array(chart.nFree));
     const box = Math.min(delta, BOX_MAX_REL * scale);
-    const cons = collectConstraints(chart, posed, state.scans, { t: state.t, margin: MARGIN_TRUST_RADII * box, w, dep, samples: true });
+    const cons = collectConstraints(chart, posed, state.scans, { t: state.t, margin: MARGIN_BOXES * box, w, dep, samples: true });
     const step = await localStep(cons, chart.nFree, state.t, delta, box, tMax, algorithm, trigger * state.t);
     state.iterations++;
     if (!step.ok) {
@@ -338,21 +321,10 @@ function escapeSaddle(state: LoopState, ctx: Context, fin: Final): { rings: Ring
   return null;
 }
 
-/** Worst exact violation relative to the tube (0 when every pair clears t (w_a + w_b)). */
-function maxViolation(scans: readonly PairScan[], t: number): number {
-  let v = 0;
-  for (const s of scans) v = Math.max(v, (t * s.c - s.distance) / t);
-  return v;
-}
-
 function infeasible(rings: Ring[], w: number[], why: string): SolveOutcome {
-  const certificate: Certificate = {
-    method: 'kkt-nnls', balanceResidual: Infinity, maxViolation: Infinity, activeStruts: 0, certified: false,
-    note: `No certificate: ${why}.`,
-  };
   return {
-    status: 'infeasible', tube: 0, rings: withTubes(rings, 0, w), iterations: 0, history: [], contacts: [], certificate,
-    message: `infeasible start: ${why}`,
+    status: 'infeasible', tube: 0, rings: withTubes(rings, 0, w), iterations: 0, history: [], contacts: [],
+    certificate: noCertificate(why), message: `infeasible start: ${why}`,
   };
 }
 
@@ -403,14 +375,6 @@ function posedOf(rings: Ring[], orbits: RingOrbits): Posed {
 
 function radii(rings: Ring[]): Float64Array {
   return Float64Array.from(rings.map((r) => r.radius));
-}
-
-function withTubes(rings: Ring[], t: number, w: number[]): Ring[] {
-  return rings.map((r, i) => ({ name: r.name, center: [...r.center], normal: [...r.normal], radius: r.radius, tube: t * w[i]! }));
-}
-
-function copy(r: Ring): Ring {
-  return { ...r, center: [...r.center], normal: [...r.normal] };
 }
 
 function validate(p: InflateProblem): void {
