@@ -6,27 +6,11 @@ import { mkdtempSync, readdirSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { main } from '../cli/main.js';
-import type { Io } from '../cli/io.js';
+import { run } from './cliHarness.js';
 import { verifyRings } from '../src/check/verify.js';
 import type { SolveResult } from '../src/model/result.js';
 import { readResultFile } from '../src/model/resultFile.js';
 
-interface Captured extends Io {
-  stdout: string[];
-  stderr: string[];
-}
-
-function capture(): Captured {
-  const stdout: string[] = [], stderr: string[] = [];
-  return { stdout, stderr, out: (t) => stdout.push(t), err: (t) => stderr.push(t), interactive: false };
-}
-
-async function run(args: string[]): Promise<{ code: number; io: Captured }> {
-  const io = capture();
-  const code = await main(args, io);
-  return { code, io };
-}
 
 const dir = mkdtempSync(join(tmpdir(), 'thickring-inflate-'));
 const h = Math.SQRT1_2;

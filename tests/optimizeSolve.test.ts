@@ -3,6 +3,7 @@
 // with the solver's own figures. Solves run in-process: these are cases whose inner QPs were checked not to
 // trip the nlopt-js WebAssembly abort (field-notes.md); the worker pool isolates everything else.
 import { describe, expect, it } from 'vitest';
+import { star } from './optimizeLayouts.js';
 import { packingBound, packingRadius } from '../src/optimize/bound.js';
 import { solveInflate } from '../src/optimize/solve.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
@@ -207,16 +208,6 @@ function pointToCircle(p: ArrayLike<number>, r: Ring): number {
   const z = d[0]! * r.normal[0] + d[1]! * r.normal[1] + d[2]! * r.normal[2];
   const rho = Math.sqrt(Math.max(0, d[0]! ** 2 + d[1]! ** 2 + d[2]! ** 2 - z * z));
   return Math.hypot(z, rho - r.radius);
-}
-
-/** K equal rings upright through a central ring, centred 1.2 R from the axis. */
-function star(K: number): Ring[] {
-  const rings: Ring[] = [{ name: 'C', center: [0, 0, 0], normal: [0, 0, 1], radius: 1 }];
-  for (let k = 0; k < K; k++) {
-    const th = (2 * Math.PI * k) / K;
-    rings.push({ name: `R${k}`, center: [1.2 * Math.cos(th), 1.2 * Math.sin(th), 0], normal: [-Math.sin(th), Math.cos(th), 0], radius: 1 });
-  }
-  return rings;
 }
 
 /**

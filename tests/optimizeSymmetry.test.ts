@@ -1,6 +1,7 @@
 // Symmetry groups on ring arrangements: option parsing, orbit detection (including a ring mapped to itself),
 // symmetrisation and the departure measure, checked against hand-derived closed forms.
 import { describe, expect, it } from 'vitest';
+import { star } from './optimizeLayouts.js';
 import { InputError } from '../src/model/errors.js';
 import {
   applySymmetry, parseSymmetryOption, ringOrbits, symmetrize, symmetryDeparture, symmetryElements,
@@ -11,15 +12,6 @@ import { linkingMatrix } from '../src/topology/index.js';
 
 const C3: Symmetry = { type: 'cyclic', order: 3, axis: [0, 0, 1], origin: [0, 0, 0] };
 const D3: Symmetry = { type: 'dihedral', order: 3, axis: [0, 0, 1], origin: [0, 0, 0] };
-
-function star(K: number): Ring[] {
-  const rings: Ring[] = [{ name: 'C', center: [0, 0, 0], normal: [0, 0, 1], radius: 1 }];
-  for (let k = 0; k < K; k++) {
-    const th = (2 * Math.PI * k) / K;
-    rings.push({ name: `R${k}`, center: [1.2 * Math.cos(th), 1.2 * Math.sin(th), 0], normal: [-Math.sin(th), Math.cos(th), 0], radius: 1 });
-  }
-  return rings;
-}
 
 describe('parseSymmetryOption', () => {
   it('parses none, cyclic:N and dihedral:N with the axis along z', () => {

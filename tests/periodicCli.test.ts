@@ -8,26 +8,11 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { Ajv2020 } from 'ajv/dist/2020.js';
 import { describe, expect, it } from 'vitest';
-import type { Io } from '../cli/io.js';
-import { main } from '../cli/main.js';
+import { run } from './cliHarness.js';
 import { readResultFile } from '../src/model/resultFile.js';
 import type { PeriodicCompareResult } from '../src/optimize/periodicCompare.js';
 import type { PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
 
-interface Captured extends Io {
-  stdout: string[];
-  stderr: string[];
-}
-
-function capture(): Captured {
-  const stdout: string[] = [], stderr: string[] = [];
-  return { stdout, stderr, out: (t) => stdout.push(t), err: (t) => stderr.push(t), interactive: false };
-}
-
-async function run(args: string[]): Promise<{ code: number; io: Captured }> {
-  const io = capture();
-  return { code: await main(args, io), io };
-}
 
 const dir = mkdtempSync(join(tmpdir(), 'thickring-weave-cli-'));
 const schema = JSON.parse(readFileSync(new URL('../schemas/result.schema.json', import.meta.url), 'utf8')) as object;
