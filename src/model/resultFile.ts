@@ -1,7 +1,7 @@
 // Reading result files (format thickring-result/1) at a boundary: every field the downstream
 // commands (report, fabricate, tracks, play) use is checked here, with a message that names the
 // file, the field, what was expected and the fix.
-import { readFileSync } from 'node:fs';
+import { readJsonFile } from './jsonFile.js';
 import { InputError } from './errors.js';
 import { RESULT_FORMAT, type ResultContact, type ResultRing, type SolveResult } from './result.js';
 import type { SolveStatus, Vec3 } from './types.js';
@@ -17,21 +17,7 @@ const MIN_NORMAL_LENGTH = 1e-12;
  * Returned ring normals are scaled to unit length; everything else is as stored.
  */
 export function readResultFile(path: string): SolveResult {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch {
-    throw new InputError(`result file '${path}' cannot be read: check the path and permissions`);
-  }
-  let data: unknown;
-  try {
-    data = JSON.parse(text);
-  } catch (e) {
-    const msg = e instanceof Error ? e.message : String(e);
-    throw new InputError(
-      `result file '${path}' is not valid JSON (${msg}): expected format "${RESULT_FORMAT}" written by thickring inflate/compare -o`,
-    );
-  }
+  const data = readJsonFile(path, 'result', `expected format "${RESULT_FORMAT}" written by thickring inflate/compare -o`);
   return parseResult(data, path);
 }
 

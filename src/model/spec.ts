@@ -1,11 +1,12 @@
 // The SPEC|LAYOUT argument of the solving commands: a catalogue spec (hopf, chain:3, ...) or the path
 // of a layout file. Either way the result is a layout plus the signed linking matrix the solve must
 // keep, after checking that the arrangement is a link that holds together at all.
-import { readFileSync, statSync } from 'node:fs';
+import { statSync } from 'node:fs';
 import { basename } from 'node:path';
 import { connectedness, linkingMatrix } from '../topology/index.js';
 import { catalogLayout, looksLikeCatalogSpec, parseCatalogSpec, type CatalogSpec } from './catalog.js';
 import { InputError } from './errors.js';
+import { readJsonFile } from './jsonFile.js';
 import { layoutFromRings, parseLayout } from './layout.js';
 import type { Layout } from './types.js';
 
@@ -112,19 +113,7 @@ export function checkHeld(linking: number[][], layout: Layout, source: string): 
 }
 
 function readLayout(path: string): Layout {
-  let text: string;
-  try {
-    text = readFileSync(path, 'utf8');
-  } catch {
-    throw new InputError(`layout file '${path}' cannot be read: check the path and permissions`);
-  }
-  let data: unknown;
-  try {
-    data = JSON.parse(text);
-  } catch (e) {
-    const msg = e instanceof Error ? e.message : String(e);
-    throw new InputError(`layout file '${path}' is not valid JSON (${msg}): fix the syntax`);
-  }
+  const data = readJsonFile(path, 'layout');
   const layout = parseLayout(data, basename(path));
   if (layout.lattice) {
     // inflate and compare send weaves to the periodic path first (src/model/periodicSpec.ts); other callers cannot take them.
