@@ -11,17 +11,29 @@
 //   source) gives aspect ratio >= 1/(√2 - 1), and the trade quotes tight European 4-in-1 at 3 to 3.3 and
 //   box chain first possible near 3.8 (weavers' guild articles and supplier charts, references.md: rules of
 //   thumb, so the check is coarse).
+// - Second-order test: at a Kuhn–Tucker point of a maximisation, the Hessian of the Lagrangian must be
+//   negative semidefinite on the critical subspace (second-order necessary condition; Nocedal and Wright,
+//   Numerical Optimization, 2nd ed. 2006, Theorem 12.5, from memory). Checked independently of the
+//   solver's Hessian code: on the surface where every active strut stays at length c_k t, Σ λ_k g_k = t
+//   (Σ λ_k c_k = 1), and Σ λ_k ∇g_k = 0, so the second derivative of t along a curve leaving with
+//   tangent v is vᵀ(Σ λ_k ∇²g_k)v. The test walks that surface (Gauss–Newton on the strut gradients,
+//   which the first test checks against differences) and measures the tube with the independent checker's
+//   brute-force core distance (src/check/verify.ts), so its second differences estimate the same curvature.
+import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
+import { coreDistance } from '../src/check/verify.js';
 import { repeatResult } from '../src/fabricate/repeat.js';
-import { blockShifts, periodicLinks } from '../src/model/periodic.js';
+import { blockShifts, latticeOffset, periodicLinks } from '../src/model/periodic.js';
 import { ringPairs } from '../src/model/ringPairs.js';
 import type { Lattice, Ring, Vec3 } from '../src/model/types.js';
 import { rotate } from '../src/model/vec.js';
 import { weaveLayout } from '../src/model/weaves.js';
-import { buildPeriodicChart, periodicPosedAt, stateOf } from '../src/optimize/periodicChart.js';
-import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic } from '../src/optimize/periodicConstraints.js';
+import { CURVATURE_TOL } from '../src/optimize/certificate.js';
+import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from '../src/optimize/periodicChart.js';
+import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicScan } from '../src/optimize/periodicConstraints.js';
 import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
-import type { PeriodicProblem } from '../src/optimize/periodicProblem.js';
+import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/periodicProblem.js';
+import { solvePeriodic } from '../src/optimize/periodicSolve.js';
 
 function problemOf(spec: string): PeriodicProblem {
   const layout = weaveLayout(spec);
@@ -37,6 +49,15 @@ function checked(r: PeriodicSolveResult): void {
   expect(r.certificate.certified).toBe(true);
   expect(r.verification.ok).toBe(true);
   expect(r.verification.messages[0]).toMatch(/checked on a block of 3( x 3)? cells/);
+  // Certified only with the second-order necessary condition (Nocedal and Wright, Theorem 12.5): the
+  // curvature on the critical subspace is measured and at most finite-difference noise.
+  expect(noteCurvature(r.certificate.note)).toBeLessThanOrEqual(CURVATURE_TOL);
+}
+
+/** The curvature the certificate note quotes (dimensionless); NaN when it quotes none. */
+function noteCurvature(note: string): number {
+  const m = /largest curvature (\S+), dimensionless/.exec(note) ?? /curves up \((\S+), dimensionless\)/.exec(note);
+  return m ? Number(m[1]) : NaN;
 }
 
 describe('strut gradients of images are chained to the ring and to the lattice', () => {
@@ -161,3 +182,160 @@ describe('blocks of cells', () => {
     expect(bad.messages.join(' ')).toMatch(/the tubes overlap/);
   });
 });
+
+describe('second-order test of weaves, re-measured independently', () => {
+  const solveOpts = { tol: 1e-9, maxIterations: 300, seed: 0, perturbation: 0.05 };
+
+  it('European 4-in-1 and box chain: the tube falls along every motion that keeps the contacts, by the curvature the note quotes', async () => {
+    for (const spec of ['weave:euro-4-in-1', 'weave:box']) {
+      const o = await solvePeriodic(problemOf(spec), solveOpts);
+      expect(o.certificate.certified).toBe(true);
+      const quoted = noteCurvature(o.certificate.note);
+      const probe = contactSurface(o, problemOf(spec).tubeRatios);
+      expect(probe.tangent.columns).toBeGreaterThan(0);
+      const { eigenvalues, worstGain } = probe.curvatures(1e-3);
+      // Every probe (step 1e-3 R along the surface) lost tube: no second-order gain (Theorem 12.5).
+      expect(worstGain).toBeLessThan(0);
+      const top = Math.max(...eigenvalues);
+      expect(top).toBeLessThan(-0.1);
+      // The same curvature as the certificate's, up to the third-order error of a 1e-3 step.
+      expect(Math.abs(top - quoted)).toBeLessThan(0.01);
+    }
+  });
+
+  it('a 2-in-1 chain with planes turning 60 degrees per ring stops at a saddle: not certified, and a nearby weave is thicker', async () => {
+    // Three rings per period, each plane turned 60 degrees about the chain axis from the one before. Such
+    // a screw-symmetric chain cannot have every neighbour pair perpendicular, and the solver stops at a
+    // symmetric Kuhn–Tucker point below the 2-in-1 optimum R/3 (packing bound, Graham et al. 1998).
+    const rings: Ring[] = [0, 1, 2].map((k) => ({
+      name: `R${k}`, center: [1.5 * k, 0, 0], normal: [0, Math.sin((k * Math.PI) / 3), Math.cos((k * Math.PI) / 3)], radius: 1,
+    }));
+    const lattice: Lattice = { vectors: [[4.5, 0, 0]] };
+    const p: PeriodicProblem = { rings, lattice, tubeRatios: [1, 1, 1], links: periodicLinks(rings, lattice) };
+    expect(p.links).toHaveLength(3);
+    const o = await solvePeriodic(p, solveOpts);
+    expect(o.certificate.certified).toBe(false);
+    expect(o.status).toBe('stalled');
+    expect(o.tube).toBeLessThan(1 / 3 - 1e-3);
+    expect(o.certificate.note).toMatch(/a Kuhn-Tucker point .* but a saddle/i);
+    expect(o.certificate.note).toMatch(/does not step off saddles/);
+    const quoted = noteCurvature(o.certificate.note);
+    expect(quoted).toBeGreaterThan(CURVATURE_TOL);
+    // Independent: the curvature of the measured tube along the contact surface has the same positive top.
+    const probe = contactSurface(o, p.tubeRatios);
+    const { eigenvalues, top } = probe.curvatures(1e-3);
+    expect(Math.abs(Math.max(...eigenvalues) - quoted)).toBeLessThan(0.01);
+    // Following that direction both ways thickens the tube (by ~ curvature · s² / 2 at step s).
+    const s = 3e-3;
+    for (const sign of [1, -1]) {
+      const gain = probe.tubeAlong(top.map((v) => sign * v), s) - probe.t0;
+      expect(gain).toBeGreaterThan(0.25 * quoted * s * s);
+    }
+  });
+});
+
+/**
+ * The surface of arrangements (chart coordinates z, lattice included) on which every active strut of an
+ * outcome keeps length c_k t, near the outcome, with the tube measured by the independent checker.
+ */
+function contactSurface(o: PeriodicOutcome, ratios: number[]) {
+  const rings: Ring[] = o.rings.map(({ tube: _t, ...r }) => r);
+  const t0 = o.tube;
+  const pc = buildPeriodicChart(rings, o.lattice);
+  const n = pc.nFree;
+  const R = Math.min(...rings.map((r) => r.radius));
+  const base = periodicPosedAt(pc, new Float64Array(n));
+  const scans = scanPeriodic(base, ringPairs({ rings, lattice: o.lattice }, 4 * t0).map((q) => ({ a: q.i, b: q.j, shift: q.shift })), ratios);
+  const active: PeriodicConstraint[] = [];
+  for (const sc of scans) {
+    for (const c of sc.contacts) {
+      if (c.d - sc.c * t0 > 1e-7 * t0) continue;
+      const con = newPeriodicConstraint('strut', sc.a, sc.b, sc.shift, c.ta, c.tb, sc.c, n);
+      evaluatePeriodic(con, pc, base, true);
+      active.push(con);
+    }
+  }
+  // Tangent: the null space of the active strut gradients.
+  const A = new Matrix(Math.max(active.length, n), n);
+  active.forEach((k, r) => {
+    for (let i = 0; i < n; i++) A.set(r, i, k.grad[i]!);
+  });
+  const svd = new SingularValueDecomposition(A);
+  const sMax = Math.max(...svd.diagonal);
+  const cols = [...Array(n).keys()].filter((j) => !((svd.diagonal[j] ?? 0) > 1e-8 * sMax));
+  const tangent = cols.length > 0 ? svd.rightSingularVectors.subMatrixColumn(cols) : new Matrix(n, 0);
+  const near = scans.filter((sc) => sc.distance <= 1.5 * sc.c * t0);
+  const tubeAt = (z: Float64Array): number => measuredTube(pc, z, near);
+  const t0Measured = tubeAt(new Float64Array(n));
+  /** Measured tube after a step of s·R along the tangent combination y, back on the surface. */
+  const tubeAlong = (y: number[], s: number): number => {
+    const z = new Float64Array(n);
+    for (let i = 0; i < n; i++) for (let c = 0; c < y.length; c++) z[i] = z[i]! + tangent.get(i, c) * y[c]! * s * R;
+    return tubeAt(backOnSurface(pc, active, z, t0, R));
+  };
+  /** Eigenvalues of the second differences of the tube on the surface (times R: dimensionless). */
+  const curvatures = (s: number): { eigenvalues: number[]; top: number[]; worstGain: number } => {
+    const k = cols.length;
+    const unit = (i: number, a: number): number[] => Array.from({ length: k }, (_, c) => (c === i ? a : 0));
+    const sum = (u: number[], v: number[]): number[] => u.map((x, c) => x + v[c]!);
+    let worstGain = -Infinity;
+    const f = (y: number[]): number => {
+      const t = tubeAlong(y, s);
+      worstGain = Math.max(worstGain, t - t0Measured);
+      return t;
+    };
+    const H = new Matrix(k, k);
+    const h2 = s * s * R;
+    for (let i = 0; i < k; i++) {
+      H.set(i, i, (f(unit(i, 1)) + f(unit(i, -1)) - 2 * t0Measured) / h2);
+      for (let j = 0; j < i; j++) {
+        const v = (f(sum(unit(i, 1), unit(j, 1))) - f(sum(unit(i, 1), unit(j, -1))) - f(sum(unit(i, -1), unit(j, 1))) + f(sum(unit(i, -1), unit(j, -1)))) / (4 * h2);
+        H.set(i, j, v);
+        H.set(j, i, v);
+      }
+    }
+    const evd = new EigenvalueDecomposition(H, { assumeSymmetric: true });
+    const eigenvalues = evd.realEigenvalues;
+    const best = eigenvalues.indexOf(Math.max(...eigenvalues));
+    return { eigenvalues, top: evd.eigenvectorMatrix.getColumn(best), worstGain };
+  };
+  return { t0: t0Measured, tangent, tubeAlong, curvatures };
+}
+
+/** Gauss–Newton (minimum-norm steps) back to g_k(z) = c_k t for every active strut, t free. */
+function backOnSurface(pc: PeriodicChart, active: readonly PeriodicConstraint[], z0: Float64Array, t0: number, R: number): Float64Array {
+  const n = pc.nFree;
+  const z = Float64Array.from(z0);
+  let t = t0;
+  const work: PeriodicConstraint[] = active.map((k) => ({ ...k, shift: k.shift.slice(), grad: new Float64Array(n), pa: [...k.pa] as Vec3, pb: [...k.pb] as Vec3 }));
+  for (let it = 0; it < 30; it++) {
+    const pp = periodicPosedAt(pc, z);
+    const J = new Matrix(work.length, n + 1);
+    const F = new Array<number>(work.length);
+    let worst = 0;
+    work.forEach((k, r) => {
+      F[r] = k.c * t - evaluatePeriodic(k, pc, pp, true);
+      worst = Math.max(worst, Math.abs(F[r]!));
+      for (let i = 0; i < n; i++) J.set(r, i, k.grad[i]!);
+      J.set(r, n, -k.c);
+    });
+    if (worst <= 1e-15 * R) return z;
+    const d = new SingularValueDecomposition(J, { autoTranspose: true }).solve(Matrix.columnVector(F));
+    for (let i = 0; i < n; i++) z[i] = z[i]! + d.get(i, 0);
+    t += d.get(n, 0);
+  }
+  throw new Error('the probe could not return to the contact surface');
+}
+
+/** Tube of the arrangement at z: smallest brute-force core distance / (w_a + w_b) over the near pairs. */
+function measuredTube(pc: PeriodicChart, z: Float64Array, near: readonly PeriodicScan[]): number {
+  const st = stateOf(pc, periodicPosedAt(pc, z));
+  let t = Infinity;
+  for (const sc of near) {
+    const off = latticeOffset(st.lattice.vectors, sc.shift);
+    const b = st.rings[sc.b]!;
+    const image = { ...b, center: [b.center[0] + off[0], b.center[1] + off[1], b.center[2] + off[2]] as Vec3 };
+    t = Math.min(t, coreDistance(st.rings[sc.a]!, image).distance / sc.c);
+  }
+  return t;
+}

@@ -30,6 +30,10 @@ export interface CertifyInput {
    * null when it was not computed. Above CURVATURE_TOL the point is a saddle, not a maximum.
    */
   curvature?: number | null;
+  /** Certify only with a curvature (a Kuhn–Tucker point whose second-order test failed to run is not certified). */
+  requireSecondOrder?: boolean;
+  /** Appended to a saddle's note: what to do, for a solver that does not step off saddles itself. */
+  saddleAdvice?: string;
 }
 
 /** Positive curvature (dimensionless) beyond finite-difference noise: the Kuhn–Tucker point is a saddle. */
@@ -64,7 +68,8 @@ export function certify(input: CertifyInput): CertifyOutput {
   const firstOrder = m > 0 && usable && balanceResidual <= CERT_BALANCE_TOL && input.maxViolation <= CERT_VIOLATION_TOL;
   const curvature = input.curvature ?? null;
   const saddle = curvature !== null && curvature > CURVATURE_TOL;
-  const certified = firstOrder && !saddle;
+  const unchecked = curvature === null && input.requireSecondOrder === true;
+  const certified = firstOrder && !saddle && !unchecked;
   const contacts: ResultContact[] = [];
   let contactSum = 0;
   active.forEach((k, j) => {
@@ -101,7 +106,11 @@ export function certify(input: CertifyInput): CertifyOutput {
     note =
       `A Kuhn-Tucker point (forces on ${what} balance to ${balanceResidual.toExponential(1)}) but a saddle: the ` +
       `Lagrangian curves up (${curvature!.toExponential(1)}, dimensionless) along a motion that keeps the binding ` +
-      `contacts, so a nearby arrangement allows a thicker tube.`;
+      `contacts, so a nearby arrangement allows a thicker tube.${input.saddleAdvice ? ` ${input.saddleAdvice}` : ''}`;
+  } else if (firstOrder && unchecked) {
+    note =
+      `A Kuhn-Tucker point (forces on ${what} balance to ${balanceResidual.toExponential(1)}), not certified: ` +
+      `the second-order condition could not be checked (a contact was lost while differencing the Lagrangian).`;
   } else if (!usable) {
     note = `Not certified: the contacts are only identified to ${input.activeTol.toExponential(1)} of the tube; the solver stopped before convergence.`;
   } else if (m === 0) {

@@ -26,12 +26,11 @@ export type PeriodicPolishResult = KktResult<PeriodicConstraint>;
 export function polishPeriodic(
   pc: PeriodicChart, active0: readonly PeriodicConstraint[], t0: number, lambda0: Float64Array, L: number,
 ): PeriodicPolishResult {
-  return polishKkt(periodicModel(pc), SETTINGS, active0, t0, lambda0, L);
+  return polishKkt(periodicKktModel(pc), SETTINGS, active0, t0, lambda0, L);
 }
 
-// ---- helpers -------------------------------------------------------------------------------------
-
-function periodicModel(pc: PeriodicChart): KktModel<PeriodicConstraint, PeriodicPosed> {
+/** The periodic chart as the Newton core and the second-order test (secondOrder.ts) see it. */
+export function periodicKktModel(pc: PeriodicChart): KktModel<PeriodicConstraint, PeriodicPosed> {
   const n = pc.nFree;
   return {
     nFree: n,

@@ -4,23 +4,26 @@
 // are linearised (images chained to their ring and to the lattice vectors) and the proximal QP of
 // localStep.ts proposes a step (HiGHS bounded in time), judged on the exact kernel (true tube, linked pairs
 // unchanged) with a trust radius (the settings of solve.ts, shared in trustRegion.ts). Once the predicted
-// gain is small, Newton on the KKT system (periodicPolish.ts) finishes and non-negative strut forces
-// (certificate.ts) certify a Kuhn–Tucker point. The second-order test and the saddle escape of solve.ts are not done here.
+// gain is small, Newton on the KKT system (periodicPolish.ts) finishes; non-negative strut forces
+// (certificate.ts) show a Kuhn–Tucker point and the curvature of the Lagrangian along the contacts
+// (secondOrder.ts, on the periodic chart) tells a maximum from a saddle, as in solve.ts. A saddle is
+// reported, not certified; the saddle escape of solve.ts is not done here.
 import { InputError } from '../model/errors.js';
 import { periodicLinks, sameLinks } from '../model/periodic.js';
 import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
-import { certify } from './certificate.js';
+import { certify, CURVATURE_TOL } from './certificate.js';
 import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
 import { seededRandom } from './perturb.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from './periodicChart.js';
 import {
   evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
 } from './periodicConstraints.js';
-import { polishPeriodic } from './periodicPolish.js';
+import { periodicKktModel, polishPeriodic } from './periodicPolish.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
 import { maxViolation, trueTube } from './scan.js';
+import { criticalCurvature } from './secondOrder.js';
 import {
   ACCEPT_RATIO, ACTIVE_TOLS, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, GROW_RATIO, MARGIN_BOXES, MAX_STEP_FAILURES,
   PERTURB_RETRIES, POLISH_LOSS_REL, POLISH_TRIGGER_START, copyRing, noCertificate, withTubes,
@@ -28,6 +31,10 @@ import {
 
 /** Pairs whose bounding spheres are this many core radii beyond touching distance are not scanned. */
 const SCAN_MARGIN_REL = 2;
+/** What a weave saddle's note adds: this solver reports a saddle but does not step off it. */
+const SADDLE_ADVICE =
+  'The weave solver does not step off saddles (the finite-ring solver does): run more starts (--starts) ' +
+  'or another --seed to look for the thicker weave.';
 
 export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   validate(problem);
@@ -202,7 +209,10 @@ function tryPolish(state: State, ctx: Ctx): Polished | null {
   return null;
 }
 
-/** First-order certificate at the final arrangement. */
+/**
+ * Certificate (first and second order) at the final arrangement: the first active set whose forces
+ * balance, with the curvature of the Lagrangian there; a saddle ends the search as in solve.ts.
+ */
 function assess(state: State, ctx: Ctx, polished: Polished | null): Assessed {
   const pc = buildPeriodicChart(state.rings, state.lattice);
   const t = state.t;
@@ -212,8 +222,18 @@ function assess(state: State, ctx: Ctx, polished: Polished | null): Assessed {
   for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
     const active = all.filter((k) => k.g - k.c * t <= tol * t);
     if (active.length === 0) continue;
-    const out = withShifts(certify({ ...base, active, activeTol: tol }), active);
-    if (out.cert.certificate.certified) return out;
+    const firstOrder = certify({ ...base, active, activeTol: tol });
+    if (!firstOrder.certificate.certified) {
+      first ??= withShifts(firstOrder, active);
+      continue;
+    }
+    // On copies: differencing re-tracks the struts, and the reported forces stay those of the balance above.
+    const model = periodicKktModel(pc);
+    const curv = criticalCurvature(model, active.map((k) => model.copy(k)), firstOrder.lambda, ctx.scale);
+    const curvature = curv?.maxCurvature ?? null;
+    const cert = certify({ ...base, active, activeTol: tol, curvature, requireSecondOrder: true, saddleAdvice: SADDLE_ADVICE });
+    const out = withShifts(cert, active);
+    if (cert.certificate.certified || (curvature !== null && curvature > CURVATURE_TOL)) return out;
     first ??= out;
   }
   return first ?? { cert: certify({ ...base, active: [], activeTol: 1 }), contacts: [] };

@@ -5,7 +5,7 @@
 import { Matrix } from 'ml-matrix';
 import { posedAt, type Chart, type Posed } from './chart.js';
 import { evaluate, type Constraint, type DepartureSpec } from './constraints.js';
-import { KKT_RESIDUAL_TOL, kktJacobianOf, polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
+import { KKT_RESIDUAL_TOL, polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
 import { leastSquares, leastSquaresRegularized } from './linalg.js';
 
 /**
@@ -24,12 +24,18 @@ export type PolishResult = KktResult<Constraint>;
 export function polish(
   chart: Chart, active0: readonly Constraint[], t0: number, lambda0: Float64Array, scale: number, dep: DepartureSpec | null,
 ): PolishResult {
-  return polishKkt(ringModel(chart, dep), SETTINGS, active0, t0, lambda0, scale);
+  return polishKkt(ringKktModel(chart, dep), SETTINGS, active0, t0, lambda0, scale);
 }
 
-/** KKT Jacobian in the scaled unknowns (z/L, t/L, λ), for the second-order test. */
-export function kktJacobian(chart: Chart, cons: Constraint[], z: Float64Array, lambda: Float64Array, L: number, dep: DepartureSpec | null): Matrix | null {
-  return kktJacobianOf(ringModel(chart, dep), cons, z, lambda, L);
+/** The ring chart as the Newton core and the second-order test (secondOrder.ts) see it. */
+export function ringKktModel(chart: Chart, dep: DepartureSpec | null): KktModel<Constraint, Posed> {
+  const n = chart.nFree;
+  return {
+    nFree: n,
+    posedAt: (z) => posedAt(chart, z),
+    evaluate: (con, posed, keep) => evaluate(con, chart, posed, true, dep, keep),
+    copy: (k) => ({ ...k, grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }),
+  };
 }
 
 /**
@@ -40,7 +46,7 @@ export function restoreContacts(
   chart: Chart, cons: readonly Constraint[], z0: Float64Array, t0: number, L: number, dep: DepartureSpec | null,
 ): { z: Float64Array; t: number } | null {
   const n = chart.nFree, m = cons.length;
-  const model = ringModel(chart, dep);
+  const model = ringKktModel(chart, dep);
   const work = cons.map((k) => model.copy(k));
   const z = Float64Array.from(z0);
   let t = t0;
@@ -64,16 +70,4 @@ export function restoreContacts(
     t += d[n]! * L;
   }
   return null;
-}
-
-// ---- helpers -------------------------------------------------------------------------------------
-
-function ringModel(chart: Chart, dep: DepartureSpec | null): KktModel<Constraint, Posed> {
-  const n = chart.nFree;
-  return {
-    nFree: n,
-    posedAt: (z) => posedAt(chart, z),
-    evaluate: (con, posed, keep) => evaluate(con, chart, posed, true, dep, keep),
-    copy: (k) => ({ ...k, grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }),
-  };
 }

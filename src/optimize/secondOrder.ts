@@ -2,12 +2,14 @@
 // negative semidefinite on the critical cone (motions that keep the contacts with positive force and do
 // not close the others; t does not change along them to first order) for a local maximum — the standard
 // second-order necessary condition. Checked on the subspace that keeps every active contact (inside the
-// cone), and on the one that keeps only the forced contacts when its best direction opens the rest. A positive eigenvalue means a saddle: a symmetric arrangement is often a maximum among
-// symmetric ones but a saddle among all, and the eigenvector is the way out.
+// cone), and on the one that keeps only the forced contacts when its best direction opens the rest. A
+// positive eigenvalue means a saddle: a symmetric arrangement is often a maximum among symmetric ones but a
+// saddle among all, and the eigenvector is the way out. W is the Hessian block of the KKT Jacobian of the
+// Newton polish (kktNewton.ts), so any KktModel is tested alike: the free rings (polish.ts ringKktModel)
+// and the weaves, whose chart adds the lattice vectors (periodicPolish.ts periodicKktModel).
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
-import type { Chart } from './chart.js';
-import type { Constraint, DepartureSpec } from './constraints.js';
-import { kktJacobian } from './polish.js';
+import type { Constraint } from './constraints.js';
+import { kktJacobianOf, type KktModel } from './kktNewton.js';
 
 /** Multipliers below this fraction of the largest do not restrict the critical subspace. */
 const POSITIVE_FORCE_REL = 1e-9;
@@ -23,12 +25,17 @@ export interface Curvature {
   direction: Float64Array | null;
 }
 
-export function criticalCurvature(
-  chart: Chart, active: Constraint[], lambda: Float64Array, L: number, dep: DepartureSpec | null,
+/**
+ * At the model's z = 0, with the active constraints and their non-negative forces `lambda` (Σ λ c = 1);
+ * `L` is the length scale (the smallest core radius). Null when a strut was lost while differencing.
+ * The constraints' stored gradients are left as re-evaluated at z = 0; pass copies to keep them.
+ */
+export function criticalCurvature<C extends Constraint, P>(
+  model: KktModel<C, P>, active: C[], lambda: Float64Array, L: number,
 ): Curvature | null {
-  const n = chart.nFree, m = active.length;
+  const n = model.nFree, m = active.length;
   if (n === 0) return { maxCurvature: 0, direction: null };
-  const J = kktJacobian(chart, active, new Float64Array(n), lambda, L, dep);
+  const J = kktJacobianOf(model, active, new Float64Array(n), lambda, L);
   if (J === null) return null;
   let lmax = 0;
   for (const l of lambda) lmax = Math.max(lmax, l);

@@ -22,7 +22,7 @@ import { certify, CURVATURE_TOL } from './certificate.js';
 import type { Constraint, DepartureSpec } from './constraints.js';
 import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
 import { perturbRings } from './perturb.js';
-import { polish, restoreContacts } from './polish.js';
+import { polish, restoreContacts, ringKktModel } from './polish.js';
 import { criticalCurvature } from './secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
 import { maxViolation, radiusLimit, representativePairs, scanPairs, trueTube, type PairScan } from './scan.js';
@@ -275,7 +275,7 @@ function assess(state: LoopState, ctx: Context, polished: Polished | null): Fina
       continue;
     }
     // Samples bound a contact arc from above, so curvature computed with them can be spurious: skip it there.
-    const curv = active.some((k) => k.kind === 'sample') ? null : criticalCurvature(chart, active, first.lambda, ctx.scale, ctx.dep);
+    const curv = active.some((k) => k.kind === 'sample') ? null : criticalCurvature(ringKktModel(chart, ctx.dep), active, first.lambda, ctx.scale);
     const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null });
     const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
     const lmax = Math.max(0, ...first.lambda);
