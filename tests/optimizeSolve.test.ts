@@ -8,6 +8,7 @@ import { packingBound, packingRadius } from '../src/optimize/bound.js';
 import { solveInflate } from '../src/optimize/solve.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
 import { chain3Start, hopfStart, torusLinkStart } from '../src/optimize/testPoses.js';
+import { catalogLayout } from '../src/model/catalog.js';
 import { symmetryDeparture } from '../src/model/symmetry.js';
 import type { Ring, Symmetry, Vec3 } from '../src/model/types.js';
 import { linkingMatrix } from '../src/topology/index.js';
@@ -89,6 +90,17 @@ describe('solveInflate: published optima', () => {
     expectValid(out, start);
     const bound = packingBound(start, [1, 1, 1], linkingMatrix(start))!;
     expect(Math.abs(bound.tube - 1 / 3)).toBeLessThan(1e-15);
+  });
+
+  it('eight-ring chain from the catalogue start: tube R/3 certified (regression: an unmoved SLSQP start taken as converged)', async () => {
+    // Same k = 2 packing bound as the three-ring chain (references.md): every inner ring holds two rings.
+    // With the CLI's defaults this start once stopped at 0.3263 R, "converged", after SLSQP handed back its
+    // start point unchanged and HiGHS timed out on the same nearly linear QP.
+    const start = catalogLayout('chain:8').rings;
+    const out = await solve('chain8', start, {}, { tol: 1e-9, maxIterations: 400, seed: 0 });
+    expect(out.status).toBe('optimal');
+    expect(Math.abs(out.tube - 1 / 3)).toBeLessThan(1e-9);
+    expectValid(out, start);
   });
 
   it('star of K rings through one ring (cyclic:K, dihedral:K and free) attains the packing bound r_K R / (1 + r_K)', async () => {

@@ -154,7 +154,11 @@ function nloptStep(
     }
   }
   const tau = finite ? s * res.x[nFree]! : 0;
-  return { ok: finite && Number.isFinite(tau), z, tau, solver: 'nlopt' };
+  // Observed (chain:8, seed 0, with the proximal radius far above the box, where the QP is nearly an LP):
+  // SLSQP hands back its start unchanged, τ below zero. That is no answer; taken as one, it ended the solve
+  // as "converged" 2 % below the optimum when HiGHS also timed out. A failed step shrinks the radius instead.
+  const unmoved = finite && res.x.every((v, i) => v === x0[i]);
+  return { ok: finite && Number.isFinite(tau) && !unmoved, z, tau, solver: 'nlopt' };
 }
 
 /** The same QP by the HiGHS active-set solver (in the unscaled variables). */
