@@ -117,7 +117,7 @@ const GEO = new Float64Array(50);
 const enum Geo {
   Dx, Dy, Dz, e1x, e1y, e1z, e2x, e2y, e2z, Bx, By, Bz, Nx, Ny, Nz, Ax, Ay, Az, rA, rB,
   // Part of A(s) - cB normal to B's axis, u(s) = U0 + U1 cos s + U2 sin s, and the coefficients of
-  // z(s) = zD + za cos s + zb sin s and p'(s) = pb cos s - pa sin s: h at any angle from these (see hFromCS).
+  // z(s) = zD + za cos s + zb sin s and p'(s) = pb cos s - pa sin s: h at any angle from these (see hAtCS).
   U0x, U0y, U0z, U1x, U1y, U1z, U2x, U2y, U2z, zD, za, zb, pa, pb,
   // Arguments and results of the hot helpers. V8 boxes every double passed to or returned from a function it
   // does not inline (isolateMinima, refine and writeRoot are too large to inline): one heap number each.
@@ -470,7 +470,7 @@ function goldenSection(lo: number, hi: number): number {
   return 0.5 * (lo + hi);
 }
 
-/** Root of h (from the geometry) in [lo, hi] given h(lo) < 0 <= h(hi): Illinois-modified regula falsi. */
+/** Root of h (read directly, not through g) in [lo, hi] given h(lo) < 0 <= h(hi): Illinois-modified regula falsi. */
 function refineH(lo: number, hi: number, hLo: number, hHi: number): number {
   let a = lo, b = hi, fa = hLo, fb = hHi;
   if (fb === 0) return b;
@@ -493,7 +493,7 @@ function refineH(lo: number, hi: number, hLo: number, hHi: number): number {
   return 0.5 * (a + b);
 }
 
-/** h(s) = p' rho - RB w' from the geometry (no cancellation through the coefficients). */
+/** h(s) = p' rho - RB w' (see hAtCS), read directly rather than through g's coefficients. */
 function hAt(s: number): number {
   return hAtCS(Math.cos(s), Math.sin(s));
 }
