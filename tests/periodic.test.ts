@@ -23,7 +23,7 @@ import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-
 import { describe, expect, it } from 'vitest';
 import { coreDistance } from '../src/check/verify.js';
 import { repeatResult } from '../src/fabricate/repeat.js';
-import { blockShifts, latticeOffset, periodicLinks } from '../src/model/periodic.js';
+import { blockShifts, latticeOffset, periodicLinks, sameLinks } from '../src/model/periodic.js';
 import { ringPairs } from '../src/model/ringPairs.js';
 import type { Lattice, Ring, Vec3 } from '../src/model/types.js';
 import { rotate } from '../src/model/vec.js';
@@ -203,22 +203,17 @@ describe('second-order test of weaves, re-measured independently', () => {
     }
   });
 
-  it('a 2-in-1 chain with planes turning 60 degrees per ring stops at a saddle: not certified, and a nearby weave is thicker', async () => {
-    // Three rings per period, each plane turned 60 degrees about the chain axis from the one before. Such
-    // a screw-symmetric chain cannot have every neighbour pair perpendicular, and the solver stops at a
-    // symmetric Kuhn–Tucker point below the 2-in-1 optimum R/3 (packing bound, Graham et al. 1998).
-    const rings: Ring[] = [0, 1, 2].map((k) => ({
-      name: `R${k}`, center: [1.5 * k, 0, 0], normal: [0, Math.sin((k * Math.PI) / 3), Math.cos((k * Math.PI) / 3)], radius: 1,
-    }));
-    const lattice: Lattice = { vectors: [[4.5, 0, 0]] };
-    const p: PeriodicProblem = { rings, lattice, tubeRatios: [1, 1, 1], links: periodicLinks(rings, lattice) };
+  it('a 2-in-1 chain with planes turning 60 degrees per ring has a saddle: with the escape off it stops there, not certified, and a nearby weave is thicker', async () => {
+    const p = screwChain();
     expect(p.links).toHaveLength(3);
-    const o = await solvePeriodic(p, solveOpts);
+    // maxEscapes 0 stops at the first polished Kuhn–Tucker point, so the detection itself is tested.
+    const o = await solvePeriodic(p, { ...solveOpts, maxEscapes: 0 });
     expect(o.certificate.certified).toBe(false);
     expect(o.status).toBe('stalled');
     expect(o.tube).toBeLessThan(1 / 3 - 1e-3);
     expect(o.certificate.note).toMatch(/a Kuhn-Tucker point .* but a saddle/i);
-    expect(o.certificate.note).toMatch(/does not step off saddles/);
+    expect(o.certificate.note).toMatch(/did not try to step off saddles/);
+    expect(o.message).not.toMatch(/left \d+ saddle/);
     const quoted = noteCurvature(o.certificate.note);
     expect(quoted).toBeGreaterThan(CURVATURE_TOL);
     // Independent: the curvature of the measured tube along the contact surface has the same positive top.
@@ -232,7 +227,48 @@ describe('second-order test of weaves, re-measured independently', () => {
       expect(gain).toBeGreaterThan(0.25 * quoted * s * s);
     }
   });
+
+  it('the same chain with the saddle escape steps off the saddle and climbs to the 2-in-1 optimum R/3, certified', async () => {
+    const p = screwChain();
+    const saddle = await solvePeriodic(p, { ...solveOpts, maxEscapes: 0 });
+    const o = await solvePeriodic(p, solveOpts);
+    expect(o.message).toMatch(/left [1-3] saddle\(s\)/);
+    expect(o.tube).toBeGreaterThan(saddle.tube + 1e-3);
+    // Two rings pass through each ring, so the packing bound (k = 2, Graham et al. 1998) caps the tube at
+    // R/3; the climb reaches it and the certificate (second order included) holds there.
+    expect(o.status).toBe('optimal');
+    expect(o.certificate.certified).toBe(true);
+    expect(Math.abs(o.tube - 1 / 3)).toBeLessThanOrEqual(1e-9);
+    expect(noteCurvature(o.certificate.note)).toBeLessThanOrEqual(CURVATURE_TOL);
+    // Independent: the same pattern (linked image pairs) and no overlap, by the brute-force checker on 3 cells.
+    expect(sameLinks(p.links, periodicLinks(o.rings, o.lattice))).toBe(true);
+    const check = verifyPeriodic(p, { rings: o.rings, lattice: o.lattice, tube: o.tube }, [3]);
+    expect(check.ok).toBe(true);
+    // And at the new point every probe along the contact surface loses tube (Theorem 12.5's necessary
+    // condition, measured). The optimum is degenerate (9 struts on 3 pairs), where the loss is second order
+    // but not a quadratic form, so a quadratic fitted to the probes can show a spurious positive eigenvalue:
+    // the direction it points to is probed as well, and it loses too.
+    const probe = contactSurface(o, p.tubeRatios);
+    for (const step of [1e-3, 3e-3]) {
+      const { top, worstGain } = probe.curvatures(step);
+      expect(worstGain).toBeLessThan(0);
+      for (const sign of [1, -1]) expect(probe.tubeAlong(top.map((v) => sign * v), step)).toBeLessThan(probe.t0);
+    }
+  });
 });
+
+/**
+ * Three rings per period, each plane turned 60 degrees about the chain axis from the one before. Such a
+ * screw-symmetric chain cannot have every neighbour pair perpendicular, and the solver first reaches a
+ * symmetric Kuhn–Tucker point below the 2-in-1 optimum R/3 (packing bound, Graham et al. 1998).
+ */
+function screwChain(): PeriodicProblem {
+  const rings: Ring[] = [0, 1, 2].map((k) => ({
+    name: `R${k}`, center: [1.5 * k, 0, 0], normal: [0, Math.sin((k * Math.PI) / 3), Math.cos((k * Math.PI) / 3)], radius: 1,
+  }));
+  const lattice: Lattice = { vectors: [[4.5, 0, 0]] };
+  return { rings, lattice, tubeRatios: [1, 1, 1], links: periodicLinks(rings, lattice) };
+}
 
 /**
  * The surface of arrangements (chart coordinates z, lattice included) on which every active strut of an

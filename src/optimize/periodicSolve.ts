@@ -1,21 +1,23 @@
 // Inflate a periodic arrangement (a weave): maximise the common tube over the cell's ring poses and the
-// lattice vectors (periodicProblem.ts). The method is that of solve.ts on a periodic chart: at the current
-// arrangement the kernel finds every strut between a cell ring and every image within reach; the struts
-// are linearised (images chained to their ring and to the lattice vectors) and the proximal QP of
-// localStep.ts proposes a step (HiGHS bounded in time), judged on the exact kernel (true tube, linked pairs
-// unchanged) with a trust radius (the settings of solve.ts, shared in trustRegion.ts). Once the predicted
-// gain is small, Newton on the KKT system (periodicPolish.ts) finishes; non-negative strut forces
-// (certificate.ts) show a Kuhn–Tucker point and the curvature of the Lagrangian along the contacts
-// (secondOrder.ts, on the periodic chart) tells a maximum from a saddle, as in solve.ts. A saddle is
-// reported, not certified; the saddle escape of solve.ts is not done here.
+// lattice vectors (periodicProblem.ts). The outer trust-region loop is that of solve.ts (outerLoop.ts) on a
+// periodic chart: at the current arrangement the kernel finds every strut between a cell ring and every
+// image within reach; the struts are linearised (images chained to their ring and to the lattice vectors)
+// and the proximal QP of localStep.ts proposes a step (HiGHS bounded in time), judged on the exact kernel
+// (true tube, linked pairs unchanged). Once the predicted gain is small, Newton on the KKT system
+// (periodicPolish.ts) finishes; non-negative strut forces (certificate.ts) show a Kuhn–Tucker point and the
+// curvature of the Lagrangian along the contacts (secondOrder.ts, on the periodic chart) tells a maximum
+// from a saddle. At a saddle the loop steps off along the ascent direction, lattice vectors included
+// (saddleEscape.ts), and climbs again, as the ring solver does; a saddle it ends on is reported, not
+// certified.
 import { InputError } from '../model/errors.js';
 import { periodicLinks, sameLinks } from '../model/periodic.js';
 import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
 import { certify, CURVATURE_TOL } from './certificate.js';
-import { localStep, readySolvers, type InnerAlgorithm } from './localStep.js';
+import { readySolvers, type InnerAlgorithm } from './localStep.js';
+import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from './outerLoop.js';
 import { seededRandom } from './perturb.js';
-import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from './periodicChart.js';
+import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart, type PeriodicPosed } from './periodicChart.js';
 import {
   evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
 } from './periodicConstraints.js';
@@ -25,16 +27,11 @@ import type { SolveOptions } from './problem.js';
 import { maxViolation, trueTube } from './scan.js';
 import { criticalCurvature } from './secondOrder.js';
 import {
-  ACCEPT_RATIO, ACTIVE_TOLS, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, GROW_RATIO, MARGIN_BOXES, MAX_STEP_FAILURES,
-  PERTURB_RETRIES, POLISH_LOSS_REL, POLISH_TRIGGER_START, copyRing, noCertificate, withTubes,
+  ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
 } from './trustRegion.js';
 
 /** Pairs whose bounding spheres are this many core radii beyond touching distance are not scanned. */
 const SCAN_MARGIN_REL = 2;
-/** What a weave saddle's note adds: this solver reports a saddle but does not step off it. */
-const SADDLE_ADVICE =
-  'The weave solver does not step off saddles (the finite-ring solver does): run more starts (--starts) ' +
-  'or another --seed to look for the thicker weave.';
 
 export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   validate(problem);
@@ -44,7 +41,8 @@ export async function solvePeriodic(problem: PeriodicProblem, options: SolveOpti
   const scale = Math.min(...R);
   const tMax = Math.min(...problem.rings.map((r, i) => r.radius / w[i]!));
   const algorithm: InnerAlgorithm = options.algorithm ?? 'slsqp';
-  const ctx: Ctx = { w, R, scale, tMax, links: problem.links, finalTol: Math.max(options.tol, 1e-15) };
+  const maxEscapes = options.maxEscapes ?? MAX_ESCAPES;
+  const ctx: Ctx = { w, R, scale, tMax, links: problem.links, finalTol: Math.max(options.tol, 1e-15), maxEscapes };
 
   // Start: perturb from the seed, halving until the linked pairs hold and nothing touches.
   let size = options.perturbation;
@@ -56,71 +54,20 @@ export async function solvePeriodic(problem: PeriodicProblem, options: SolveOpti
   }
   if (start === null) return infeasible(problem, 'the start rings intersect or do not have the pattern\'s linked pairs');
 
-  let state = start;
-  let iterations = 0;
-  const history = [state.t];
-  let delta = DELTA_START_REL * scale;
-  let trigger = POLISH_TRIGGER_START;
-  let failures = 0;
-  let stopReason = 'iteration limit';
-  let polished: Polished | null = null;
-
-  while (iterations < options.maxIterations) {
-    const pc = buildPeriodicChart(state.rings, state.lattice);
-    const box = Math.min(delta, BOX_MAX_REL * scale);
-    const cons = collect(pc, state, ctx, MARGIN_BOXES * box);
-    const step = await localStep(cons, pc.nFree, state.t, delta, box, tMax, algorithm, trigger * state.t);
-    iterations++;
-    if (!step.ok) {
-      failures++;
-      delta *= 0.25;
-      history.push(state.t);
-      if (failures > MAX_STEP_FAILURES || delta < DELTA_MIN_REL * scale) {
-        stopReason = 'the local solver failed';
-        break;
-      }
-      continue;
-    }
-    const predicted = step.tau;
-    if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
-      const p = tryPolish(state, ctx);
-      if (p) {
-        state = p.state;
-        history.push(state.t);
-        options.onIteration?.(iterations, state.t);
-        polished = p;
-        stopReason = 'polished';
-        break;
-      }
-      while (!(predicted > trigger * state.t) && trigger > ctx.finalTol) trigger = Math.max(trigger * 0.01, ctx.finalTol);
-      if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
-        stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
-        break;
-      }
-    }
-    const trial = stateOf(pc, periodicPosedAt(pc, step.z));
-    const next = stateAt(trial.rings, trial.lattice, ctx);
-    const ratio = (next.t - state.t) / predicted;
-    if (next.t > 0 && ratio >= ACCEPT_RATIO && sameLinks(ctx.links, periodicLinks(next.rings, next.lattice))) {
-      state = next;
-      if (ratio >= GROW_RATIO) delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
-    } else {
-      delta *= 0.25;
-    }
-    history.push(state.t);
-    options.onIteration?.(iterations, state.t);
-  }
-
-  const fin = assess(state, ctx, polished);
-  const status = fin.cert.certificate.certified
-    ? 'optimal'
-    : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
-  const message =
-    `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
-    ` (${stopReason}${polished ? `: ${polished.message}` : ''}); tube ${state.t} (layout units)`;
+  const run = await runOuterLoop(start, {
+    scale, tMax, finalTol: ctx.finalTol, algorithm,
+    maxIterations: options.maxIterations, maxEscapes: ctx.maxEscapes, onIteration: options.onIteration,
+    escapeSizes: ESCAPE_STEPS_REL,
+    chart: (s) => periodicLoopChart(s, ctx),
+    admissible: (s) => sameLinks(ctx.links, periodicLinks(s.rings, s.lattice)),
+    polish: (s) => tryPolish(s, ctx),
+    assess: (s, p) => assess(s, ctx, p),
+  });
+  const fin = run.fin.state;
   return {
-    status, tube: state.t, rings: withTubes(state.rings, state.t, w), lattice: copyLattice(state.lattice),
-    iterations, history, contacts: fin.contacts, certificate: fin.cert.certificate, message,
+    status: run.status, tube: fin.t, rings: withTubes(fin.rings, fin.t, w), lattice: copyLattice(fin.lattice),
+    iterations: run.iterations, history: run.history, contacts: run.fin.contacts, certificate: run.fin.cert.certificate,
+    message: run.message,
   };
 }
 
@@ -133,6 +80,7 @@ interface Ctx {
   tMax: number;
   links: PeriodicProblem['links'];
   finalTol: number;
+  maxEscapes: number;
 }
 
 interface State {
@@ -142,10 +90,22 @@ interface State {
   t: number;
 }
 
-interface Polished {
-  state: State;
-  activeTol: number;
-  message: string;
+interface Final extends Assessed<State, PeriodicConstraint> {
+  contacts: PeriodicContact[];
+}
+
+/** The periodic chart at the arrangement, for the outer loop. */
+function periodicLoopChart(state: State, ctx: Ctx): LoopChart<State, PeriodicConstraint, PeriodicPosed> {
+  const pc = buildPeriodicChart(state.rings, state.lattice);
+  return {
+    nFree: pc.nFree,
+    model: periodicKktModel(pc),
+    constraints: (margin) => collect(pc, state, ctx, margin),
+    at: (z) => {
+      const trial = stateOf(pc, periodicPosedAt(pc, z));
+      return stateAt(trial.rings, trial.lattice, ctx);
+    },
+  };
 }
 
 /** Scan every pair within reach and take the true tube. */
@@ -188,7 +148,7 @@ function collect(pc: PeriodicChart, state: State, ctx: Ctx, margin: number): Per
 }
 
 /** Newton on the active set for each candidate threshold; accepted only if the kernel agrees. */
-function tryPolish(state: State, ctx: Ctx): Polished | null {
+function tryPolish(state: State, ctx: Ctx): Polished<State> | null {
   const pc = buildPeriodicChart(state.rings, state.lattice);
   const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * state.t);
   let lastSet = '';
@@ -210,42 +170,52 @@ function tryPolish(state: State, ctx: Ctx): Polished | null {
 }
 
 /**
- * Certificate (first and second order) at the final arrangement: the first active set whose forces
- * balance, with the curvature of the Lagrangian there; a saddle ends the search as in solve.ts.
+ * Certificate (first and second order) at the arrangement: the first active set whose forces balance, with
+ * the curvature of the Lagrangian there; a saddle ends the search with its ascent direction. When no set
+ * balances, a nearly balanced one with an ascent direction still shows the loop the way off.
  */
-function assess(state: State, ctx: Ctx, polished: Polished | null): Assessed {
+function assess(state: State, ctx: Ctx, polished: Polished<State> | null): Final {
   const pc = buildPeriodicChart(state.rings, state.lattice);
   const t = state.t;
   const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * t);
   const base = { nFree: pc.nFree, maxViolation: maxViolation(state.scans, t), activeTolLimit: Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!), polished: polished !== null };
-  let first: Assessed | null = null;
+  const polishMessage = polished?.message ?? null;
+  let first: Final | null = null;
+  // A near-balanced set with an ascent direction: the way off when no set balances (an unpolished saddle).
+  let way: Final | null = null;
   for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
     const active = all.filter((k) => k.g - k.c * t <= tol * t);
     if (active.length === 0) continue;
     const firstOrder = certify({ ...base, active, activeTol: tol });
-    if (!firstOrder.certificate.certified) {
-      first ??= withShifts(firstOrder, active);
+    // Near a saddle the balance is only approximate; the curvature still shows the way out.
+    if (!firstOrder.certificate.certified && !(firstOrder.certificate.balanceResidual <= ESCAPE_BALANCE_TOL)) {
+      first ??= { state, ...withShifts(firstOrder, active), escape: null, binding: [], polishMessage };
       continue;
     }
     // On copies: differencing re-tracks the struts, and the reported forces stay those of the balance above.
     const model = periodicKktModel(pc);
     const curv = criticalCurvature(model, active.map((k) => model.copy(k)), firstOrder.lambda, ctx.scale);
     const curvature = curv?.maxCurvature ?? null;
-    const cert = certify({ ...base, active, activeTol: tol, curvature, requireSecondOrder: true, saddleAdvice: SADDLE_ADVICE });
-    const out = withShifts(cert, active);
-    if (cert.certificate.certified || (curvature !== null && curvature > CURVATURE_TOL)) return out;
+    const cert = certify({ ...base, active, activeTol: tol, curvature, requireSecondOrder: true, saddleAdvice: saddleAdvice(ctx.maxEscapes) });
+    const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
+    const out: Final = { state, ...withShifts(cert, active), escape, binding: bindingContacts(active, firstOrder.lambda), polishMessage };
+    if (cert.certificate.certified || (firstOrder.certificate.certified && escape !== null)) return out;
+    if (escape !== null) way ??= out;
     first ??= out;
   }
-  return first ?? { cert: certify({ ...base, active: [], activeTol: 1 }), contacts: [] };
+  return way ?? first ?? { state, cert: certify({ ...base, active: [], activeTol: 1 }), contacts: [], escape: null, binding: [], polishMessage };
 }
 
-interface Assessed {
-  cert: ReturnType<typeof certify>;
-  contacts: PeriodicContact[];
+/** What a weave saddle's note adds when the solve ends on one. */
+function saddleAdvice(maxEscapes: number): string {
+  const why = maxEscapes > 0
+    ? `The solver steps off at most ${maxEscapes} saddle${maxEscapes === 1 ? '' : 's'} per start and did not leave this one`
+    : 'This solve did not try to step off saddles (maxEscapes 0)';
+  return `${why}: run more starts (--starts) or another --seed to look for the thicker weave.`;
 }
 
 /** certify lists contacts in the order of the active struts: give each the shift of its image. */
-function withShifts(cert: ReturnType<typeof certify>, active: readonly PeriodicConstraint[]): Assessed {
+function withShifts(cert: ReturnType<typeof certify>, active: readonly PeriodicConstraint[]): { cert: ReturnType<typeof certify>; contacts: PeriodicContact[] } {
   const struts = active.filter((k) => k.kind === 'strut');
   return { cert, contacts: cert.contacts.map((c, k) => ({ ...c, shift: struts[k]!.shift.slice() })) };
 }

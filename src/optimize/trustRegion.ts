@@ -1,4 +1,4 @@
-// Settings of the outer trust-region loop, shared by the ring solver (solve.ts) and the weave solver
+// Settings of the outer trust-region loop (outerLoop.ts), shared by the ring solver (solve.ts) and the weave solver
 // (periodicSolve.ts), which run the same method on different charts; and the small pieces of an outcome
 // both build. Lengths are relative to the smallest core radius, gains and slacks to the tube.
 import type { Certificate } from '../model/result.js';
@@ -25,6 +25,11 @@ export const POLISH_LOSS_REL = 1e-12;
 export const MAX_STEP_FAILURES = 5;
 /** Halvings of the start perturbation tried before giving up on a seeded start. */
 export const PERTURB_RETRIES = 8;
+/** Saddles stepped off at most per solve, and the sizes of that step tried (relative to the smallest core radius). */
+export const MAX_ESCAPES = 3;
+export const ESCAPE_STEPS_REL: readonly number[] = [1e-2, 3e-2, 1e-1];
+/** Balance residual up to which a near-critical point is searched for a way off a saddle. */
+export const ESCAPE_BALANCE_TOL = 1e-3;
 
 /** The certificate of a start that could not be solved at all. */
 export function noCertificate(why: string): Certificate {

@@ -1,0 +1,193 @@
+// The outer trust-region loop on the max–min problem, shared by the ring solver (solve.ts) and the weave
+// solver (periodicSolve.ts), which hand it their chart through the hooks of OuterLoop.
+//
+// At the current arrangement the constraints near touching are linearised in the chart and the proximal QP
+// (localStep.ts) proposes a step, judged on the exact kernel: the true tube of the new arrangement against
+// the predicted gain, with the caller's admissibility (linking, departure bound) re-checked; the radius
+// shrinks on rejection and grows on success, so the tube never decreases (settings in trustRegion.ts). Once
+// the predicted gain is small, the caller's Newton polish finishes, and its assessment (first-order
+// certificate and second-order test, secondOrder.ts) tells a maximum from a saddle. At a saddle the loop
+// steps off along the ascent direction keeping the binding contacts (saddleEscape.ts) and climbs again, at
+// most maxEscapes times; a symmetric arrangement is often a maximum among symmetric ones but a saddle among
+// all. The best polished point is reported unless the loop ended higher without one.
+import type { CertifyOutput } from './certificate.js';
+import type { Constraint } from './constraints.js';
+import { localStep, type InnerAlgorithm } from './localStep.js';
+import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
+import type { SolveOutcome } from './problem.js';
+import {
+  ACCEPT_RATIO, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO, MARGIN_BOXES,
+  MAX_STEP_FAILURES, POLISH_TRIGGER_START,
+} from './trustRegion.js';
+
+/** Forces below this fraction of the largest do not count as binding (the escape may open those contacts). */
+const BINDING_FORCE_REL = 1e-9;
+
+/** The chart at the current arrangement (coordinates z, origin at the arrangement). */
+export interface LoopChart<S extends { t: number }, C extends Constraint, P> extends EscapeChart<S, C, P> {
+  nFree: number;
+  /** Constraints within `margin` (layout units) of touching, with their gradients at z = 0. */
+  constraints(margin: number): Constraint[];
+}
+
+export interface Polished<S> {
+  state: S;
+  /** Slack threshold (relative to the tube) of the active set that polished. */
+  activeTol: number;
+  message: string;
+}
+
+/** The assessment of an arrangement: its certificate and, at a saddle, the way off. */
+export interface Assessed<S extends { t: number }, C extends Constraint> {
+  state: S;
+  cert: CertifyOutput;
+  /** Ascent direction (chart coordinates at `state`) when the point is a saddle. */
+  escape: Float64Array | null;
+  /** Contacts with positive force, which the escape keeps touching. */
+  binding: C[];
+  polishMessage: string | null;
+}
+
+/** What differs between the charts: how to linearise, polish, assess and judge an arrangement. */
+export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A extends Assessed<S, C>> {
+  /** Length scale (the smallest core radius, layout units). */
+  scale: number;
+  /** Largest tube the radius limit allows (layout units). */
+  tMax: number;
+  finalTol: number;
+  algorithm: InnerAlgorithm;
+  maxIterations: number;
+  maxEscapes: number;
+  /** Escape step sizes tried in turn (relative to `scale`). */
+  escapeSizes: readonly number[];
+  onIteration?: ((iteration: number, tube: number) => void) | undefined;
+  chart(state: S): LoopChart<S, C, P>;
+  /** Beyond a positive tube: the linking and any departure bound hold. */
+  admissible(state: S): boolean;
+  polish(state: S): Polished<S> | null;
+  assess(state: S, polished: Polished<S> | null): A;
+}
+
+export interface LoopRun<A> {
+  /** The reported point (the best polished one unless the loop ended higher without one). */
+  fin: A;
+  status: SolveOutcome['status'];
+  message: string;
+  iterations: number;
+  /** Tube after each outer iteration, starting with the start's. */
+  history: number[];
+  escapes: number;
+}
+
+export async function runOuterLoop<S extends { t: number }, C extends Constraint, P, A extends Assessed<S, C>>(
+  start: S, loop: OuterLoop<S, C, P, A>,
+): Promise<LoopRun<A>> {
+  const scale = loop.scale;
+  let state = start;
+  let iterations = 0;
+  const history = [state.t];
+  let delta = DELTA_START_REL * scale;
+  let trigger = POLISH_TRIGGER_START;
+  let best: A | null = null;
+  let escapes = 0;
+  let failures = 0;
+  let stopReason = 'iteration limit';
+  const record = (): void => {
+    history.push(state.t);
+    loop.onIteration?.(iterations, state.t);
+  };
+  const stepOff = (fin: A): S | null =>
+    escapeSaddle(loop.chart(state), fin.binding, fin.escape!, state.t, scale, loop.escapeSizes, (s) => loop.admissible(s));
+  /** After an escape the trust region restarts at the escape's scale and the polish trigger at its start. */
+  const restart = (off: S): void => {
+    state = off;
+    delta = ESCAPE_STEPS_REL[0]! * scale;
+    trigger = POLISH_TRIGGER_START;
+  };
+
+  while (iterations < loop.maxIterations) {
+    const chart = loop.chart(state);
+    const box = Math.min(delta, BOX_MAX_REL * scale);
+    const cons = chart.constraints(MARGIN_BOXES * box);
+    const step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);
+    iterations++;
+    if (!step.ok) {
+      failures++;
+      delta *= 0.25;
+      record();
+      if (failures > MAX_STEP_FAILURES || delta < DELTA_MIN_REL * scale) {
+        stopReason = 'the local solver failed';
+        break;
+      }
+      continue;
+    }
+    failures = 0;
+    const predicted = step.tau;
+    if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+      // The local model promises little more: finish by Newton, then check the second-order condition.
+      const p = loop.polish(state);
+      if (p) {
+        state = p.state;
+        record();
+        const fin = loop.assess(state, p);
+        if (best === null || fin.state.t >= best.state.t) best = fin;
+        if (fin.escape === null || escapes >= loop.maxEscapes) {
+          stopReason = 'polished';
+          break;
+        }
+        // A saddle: step off it along the ascent direction and climb again.
+        escapes++;
+        const off = stepOff(fin);
+        if (off === null) {
+          stopReason = 'polished (saddle, no way off found)';
+          break;
+        }
+        restart(off);
+        continue;
+      }
+      // No polish: perhaps a saddle the first-order model cannot leave (its gain there is second order).
+      if (escapes < loop.maxEscapes) {
+        const here = loop.assess(state, null);
+        const off = here.escape ? stepOff(here) : null;
+        if (off) {
+          escapes++;
+          restart(off);
+          record();
+          continue;
+        }
+      }
+      // Tighten the trigger and keep stepping while the model still promises a gain.
+      while (!(predicted > trigger * state.t) && trigger > loop.finalTol) trigger = Math.max(trigger * 0.01, loop.finalTol);
+      if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+        stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
+        break;
+      }
+    }
+    const next = chart.at(step.z);
+    const ratio = (next.t - state.t) / predicted;
+    if (next.t > 0 && ratio >= ACCEPT_RATIO && loop.admissible(next)) {
+      state = next;
+      if (ratio >= GROW_RATIO) delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
+    } else {
+      delta *= 0.25;
+    }
+    record();
+  }
+
+  let fin = best;
+  if (fin === null || state.t > fin.state.t * (1 + loop.finalTol)) fin = loop.assess(state, null);
+  const status = fin.cert.certificate.certified
+    ? 'optimal'
+    : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
+  const message =
+    `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
+    ` (${stopReason}${fin.polishMessage ? `: ${fin.polishMessage}` : ''}${escapes > 0 ? `; left ${escapes} saddle(s)` : ''}); ` +
+    `tube ${fin.state.t} (layout units)`;
+  return { fin, status, message, iterations, history, escapes };
+}
+
+/** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */
+export function bindingContacts<C extends Constraint>(active: readonly C[], lambda: Float64Array): C[] {
+  const lmax = Math.max(0, ...lambda);
+  return active.filter((_, k) => lambda[k]! > BINDING_FORCE_REL * lmax);
+}
