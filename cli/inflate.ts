@@ -10,6 +10,7 @@ import { isPeriodicArg } from '../src/model/periodicSpec.js';
 import { BOUND_ATTAINED, optimalityOf, optimalityText, type SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { runMultistart, type StartProgress } from '../src/optimize/multistart.js';
+import type { StartHeartbeat } from '../src/optimize/startLoop.js';
 import type { PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
 import { runPeriodicInflate } from '../src/optimize/periodicRun.js';
 import type { InflateProblem } from '../src/optimize/problem.js';
@@ -78,6 +79,7 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io, 
       command: 'inflate',
       units: layout.units ?? null,
       onProgress: progress.update,
+      onIteration: progress.heartbeat,
     });
   } finally {
     progress.stop();
@@ -117,6 +119,7 @@ export async function runWeaveInflate(arg: string, options: SolveCliOptions, raw
       ...(raw['density'] !== undefined ? { density: String(raw['density']) } : {}),
       ...(raw['wireDiameter'] !== undefined ? { wireDiameter: String(raw['wireDiameter']) } : {}),
       onProgress: progress.update,
+      onIteration: progress.heartbeat,
     }, command);
     return { result: repeats === undefined ? run.result : repeatResult(run.result, repeats), notes: run.notes };
   } finally {
@@ -245,26 +248,43 @@ export function formatInflate(run: InflateRun, output?: string): string {
 
 interface Progress {
   update: (e: StartProgress) => void;
+  /** A running start's iteration and tube, heard a few times a second. */
+  heartbeat: (e: StartHeartbeat) => void;
   stop: () => void;
 }
 
-/** A bar on an interactive stderr, else one line per finished start. */
+/** Seconds between "still running" lines when stderr is not a terminal (long solves: chain:20 takes ~1 min). */
+const HEARTBEAT_LINE_S = 10;
+
+/**
+ * A bar on an interactive stderr (with the latest running start's iteration and tube), else one line per
+ * finished start and a "still running" line every HEARTBEAT_LINE_S seconds.
+ */
 function progressReporter(io: Io, total: number): Progress {
   if (io.interactive) {
     const bar = new cliProgress.SingleBar(
-      { format: 'inflate [{bar}] {value}/{total} starts | best tube {best}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
+      { format: 'inflate [{bar}] {value}/{total} starts | best tube {best} | {running}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
       cliProgress.Presets.shades_classic,
     );
-    bar.start(total, 0, { best: '-' });
+    bar.start(total, 0, { best: '-', running: '' });
     return {
       update: (e) => {
         bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : num(e.bestTube) });
         for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       },
+      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)}` }),
       stop: () => bar.stop(),
     };
   }
+  const t0 = Date.now();
+  let lastLine = t0;
   return {
+    heartbeat: (e) => {
+      const now = Date.now();
+      if (now - lastLine < HEARTBEAT_LINE_S * 1000) return;
+      lastLine = now;
+      io.err(`... ${Math.round((now - t0) / 1000)} s: start ${e.start} at iteration ${e.iteration}, tube ${num(e.tube)} (layout units)`);
+    },
     update: (e) => {
       for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       io.err(

@@ -9,6 +9,7 @@ import type { SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { runMultistart, startSeed, type MultistartOptions, type StartProgress } from '../src/optimize/multistart.js';
 import type { InflateProblem } from '../src/optimize/problem.js';
+import type { StartHeartbeat } from '../src/optimize/startLoop.js';
 
 function problemOf(spec: string): InflateProblem {
   const r = resolveSpec(spec);
@@ -25,6 +26,22 @@ function withoutTiming(r: SolveResult): Omit<SolveResult, 'elapsedSeconds'> {
 }
 
 describe('runMultistart', () => {
+  it('reports running starts from the workers: iterations rise, tubes stay below the optimum R/2 (CKS 2002)', async () => {
+    const beats: StartHeartbeat[] = [];
+    const r = await runMultistart(problemOf('hopf'), { ...base('hopf'), workers: 2, onIteration: (e) => beats.push(e) });
+    // The first iteration of every start is always reported (later ones at most four times a second).
+    expect(new Set(beats.map((b) => b.start))).toEqual(new Set([0, 1, 2]));
+    for (const b of beats) {
+      expect(b.iteration).toBeGreaterThanOrEqual(1);
+      expect(b.tube).toBeGreaterThan(0);
+      expect(b.tube).toBeLessThanOrEqual(r.tube * (1 + 1e-9));
+    }
+    for (const k of [0, 1, 2]) {
+      const its = beats.filter((b) => b.start === k).map((b) => b.iteration);
+      expect(its).toEqual([...its].sort((x, y) => x - y));
+    }
+  });
+
   it('hopf: same answer on 1 and 2 workers, tube R/2 (CKS 2002), re-verified', async () => {
     const problem = problemOf('hopf');
     const one = await runMultistart(problem, { ...base('hopf'), workers: 1 });

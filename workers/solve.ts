@@ -22,8 +22,12 @@ export interface WorkerTask {
   simulateAbort?: Algorithm[];
 }
 
+/** Iteration reports to the main thread at most this often (milliseconds): each one is a message. */
+const HEARTBEAT_MS = 250;
+
 const api = {
-  async solve(task: WorkerTask): Promise<SolveOutcome> {
+  /** `progress`, when given (a comlink proxy), hears the iteration count and tube now and then. */
+  async solve(task: WorkerTask, progress?: (iteration: number, tube: number) => void): Promise<SolveOutcome> {
     const algorithm = task.options.algorithm ?? 'slsqp';
     if (task.simulateAbort?.includes(algorithm)) {
       setImmediate(() => {
@@ -31,8 +35,23 @@ const api = {
       });
       return new Promise<SolveOutcome>(() => {});
     }
-    const options = { ...task.options, algorithm };
-    return isPeriodicProblem(task.problem) ? solvePeriodic(task.problem, options) : solveInflate(task.problem, options);
+    const options: SolveOptions = { ...task.options, algorithm };
+    if (progress) {
+      let last = 0;
+      options.onIteration = (iteration, tube) => {
+        const now = Date.now();
+        if (now - last < HEARTBEAT_MS) return;
+        last = now;
+        // Fire and forget: a report the main thread no longer wants must not fail the solve.
+        Promise.resolve(progress(iteration, tube)).catch(() => {});
+      };
+    }
+    try {
+      return await (isPeriodicProblem(task.problem) ? solvePeriodic(task.problem, options) : solveInflate(task.problem, options));
+    } finally {
+      // Close the callback's channel so the main thread's end of it does not outlive the task.
+      (progress as unknown as Partial<Record<typeof Comlink.releaseProxy, () => void>> | undefined)?.[Comlink.releaseProxy]?.();
+    }
   },
 };
 

@@ -4,6 +4,7 @@ import { InputError } from '../model/errors.js';
 import { parseDensity, parseWireDiameter, weaveWeight } from '../model/periodicMaterials.js';
 import { resolvePeriodicSpec, type ResolvedPeriodic } from '../model/periodicSpec.js';
 import type { StartProgress } from './multistart.js';
+import type { StartHeartbeat } from './startLoop.js';
 import { runPeriodicMultistart, type PeriodicSolveResult } from './periodicMultistart.js';
 import type { PeriodicProblem } from './periodicProblem.js';
 
@@ -19,6 +20,7 @@ export interface PeriodicRunOptions {
   density?: string;
   wireDiameter?: string;
   onProgress?: (e: StartProgress) => void;
+  onIteration?: (e: StartHeartbeat) => void;
 }
 
 export interface PeriodicRun {
@@ -44,6 +46,7 @@ export async function runPeriodicInflate(arg: string, options: PeriodicRunOption
     starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
     spec: resolved.spec, command, units: resolved.layout.units ?? null,
     ...(options.onProgress ? { onProgress: options.onProgress } : {}),
+    ...(options.onIteration ? { onIteration: options.onIteration } : {}),
   });
   if (density && result.tube > 0) {
     const weight = weaveWeight({ rings: result.rings, lattice: result.lattice, units: result.units }, density, wire);

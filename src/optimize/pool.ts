@@ -35,6 +35,8 @@ export interface PoolOptions {
   workers: number;
   /** Called as each task finishes (in finishing order). */
   onResult?: (result: PoolResult) => void;
+  /** Called now and then while a task runs (a few times a second at most per worker). */
+  onIteration?: (taskId: number, iteration: number, tube: number) => void;
 }
 
 /** Run every task on at most `workers` worker threads; results come back in task order. */
@@ -53,7 +55,7 @@ export async function runPool(tasks: PoolTask[], options: PoolOptions): Promise<
         while (next < tasks.length && !closed) {
           const index = next++;
           const task = tasks[index]!;
-          const r = await runTask(task, () => {
+          const r = await runTask(task, options.onIteration, () => {
             if (closed) throw new Error('the worker pool was closed');
             if (thread === null || thread.dead) {
               if (thread) live.delete(thread);
@@ -92,7 +94,9 @@ interface SolveThread {
   stop(): Promise<void>;
 }
 
-async function runTask(task: PoolTask, thread: () => SolveThread): Promise<PoolResult> {
+async function runTask(
+  task: PoolTask, onIteration: PoolOptions['onIteration'], thread: () => SolveThread,
+): Promise<PoolResult> {
   const first = task.options.algorithm ?? 'slsqp';
   const order = [first, ...ALGORITHM_ORDER.filter((a) => a !== first)];
   const errors: string[] = [];
@@ -102,7 +106,8 @@ async function runTask(task: PoolTask, thread: () => SolveThread): Promise<PoolR
     const { id: _id, ...payload } = task;
     const workerTask: WorkerTask = { ...payload, options: { ...task.options, algorithm } };
     try {
-      const outcome = await Promise.race([t.api.solve(workerTask), t.died]);
+      const heartbeat = onIteration ? Comlink.proxy((i: number, tube: number) => onIteration(task.id, i, tube)) : undefined;
+      const outcome = await Promise.race([t.api.solve(workerTask, heartbeat), t.died]);
       return { id: task.id, outcome, algorithm, retries, errors };
     } catch (e) {
       const msg = e instanceof Error ? e.message : String(e);

@@ -24,6 +24,8 @@ export interface StartLoopOptions {
   perturbation?: number;
   algorithm?: Algorithm;
   onProgress?: (event: StartProgress) => void;
+  /** Heard now and then while a start runs: which start, its outer iteration and current tube (layout units). */
+  onIteration?: (event: StartHeartbeat) => void;
   /** Test-only: make the worker die, as on a WebAssembly abort, for these starts and algorithms. */
   simulateAbort?: { start: number; algorithms: Algorithm[] }[];
 }
@@ -42,6 +44,12 @@ export interface StartProgress {
   errors: string[];
   /** Best verified tube so far (layout units), NaN when none yet. */
   bestTube: number;
+}
+
+export interface StartHeartbeat {
+  start: number;
+  iteration: number;
+  tube: number;
 }
 
 /** One finished start with the independent check of its outcome. */
@@ -93,8 +101,10 @@ export async function runStarts<O extends SolveOutcome>(
   const checked: CheckedStart<O>[] = new Array(tasks.length);
   let done = 0;
   let bestTube = NaN;
+  const onIteration = options.onIteration;
   await runPool(tasks, {
     workers: options.workers,
+    ...(onIteration ? { onIteration: (start: number, iteration: number, tube: number) => onIteration({ start, iteration, tube }) } : {}),
     onResult: (r) => {
       const outcome = r.outcome as O | null;
       const c: CheckedStart<O> = { result: r, outcome, verification: outcome ? verify(outcome, clearanceTolerance) : null };
