@@ -228,8 +228,9 @@ describe('randomised comparison with the brute-force reference (dense sampling +
 });
 
 describe('trigonometric polynomial arithmetic used by the kernel', () => {
-  // Pointwise: (x y)(s) = x(s) y(s) for the product-to-sum product, and the derivatives of evalTrig4 against
-  // central differences of the value (plain calculus, no source needed beyond the definitions).
+  // Pointwise: (x y)(s) = x(s) y(s) for the product built by the product-to-sum identities (Abramowitz and
+  // Stegun, Handbook of Mathematical Functions, 4.3.31-4.3.33; numbers from memory), and the derivatives of
+  // evalTrig4 against central differences of the value.
   it('degree-2 products equal the pointwise products, and evalTrig4 derivatives match differences', () => {
     const r = rng(5);
     const val = (p: ArrayLike<number>, s: number) => {
@@ -298,6 +299,8 @@ describe('first-order condition of a strut (a closest pair is perpendicular to b
 });
 
 describe('extreme proportions against the brute-force reference', () => {
+  // Reference: tests/reference/bruteCircle.ts (dense sampling of A, Eberly's closed-form point–circle distance,
+  // golden-section refinement), which shares nothing with the kernel's polynomial method.
   it('radius ratios up to 1e3 and rings up to 1e4 radii apart: same global distance and minima', () => {
     const r = rng(31);
     for (let i = 0; i < 600; i++) {

@@ -24,18 +24,20 @@
  * Continua of closest pairs (f constant): coaxial circles, and a circle lying on a constant-radius tube around
  * the other (the tight Hopf link). Those return evenly spaced representatives and set lastContinuum().
  * Parallel planes and coplanar circles are not special: they have isolated minima unless coaxial.
+ *
+ * This file: the set-up of g, the certified isolation and the Halley polish. The query's geometry and the
+ * exact f, h and contact points live in queryGeometry.ts; the regimes that work on f and h directly (near a
+ * continuum, flat minima, the global fallback) in exactFallbacks.ts.
  */
 import { mulTrig22, evalTrig4 } from './trigPoly.js';
 import { basisInto, wrapAngle } from './frame.js';
+import {
+  CONTINUUM_REL_TOL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, ROOT_ANGLE_TOL, rootAt, setRoot, writeContact, writeContinuum, writeRoot,
+} from './queryGeometry.js';
+import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima } from './exactFallbacks.js';
 
-/** Floats per contact in the raw output buffer: [angleA, distance, pA(3), pB(3)]. */
-export const CONTACT_STRIDE = 8;
-/** At most 4 isolated local minima exist (degree-8 stationary equation); continua use CONTINUUM_SAMPLES. */
-export const CONTINUUM_SAMPLES = 12;
-export const MAX_CONTACTS = 16;
+export { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, MAX_CONTACTS } from './queryGeometry.js';
 
-/** Relative size (to the length scale) of the spread of f below which f is taken as constant (a continuum). */
-export const CONTINUUM_REL_TOL = 1e-12;
 /** Relative size of g below which the continuum test is run (cheap pre-filter). */
 const G_SMALL_REL = 1e-6;
 const INITIAL_INTERVALS = 16;
@@ -44,11 +46,7 @@ const EPS = 2.220446049250313e-16;
 const NEAR_CONTINUUM_REL = 1e-6;
 /** Below this, Newton on g is not precise enough for the root: polish on the exact h instead. */
 const WELL_CONDITIONED_REL = 1e-4;
-const NEAR_CONTINUUM_SAMPLES = 720;
-/** Rounding level of h (units of length^3, times L^3). */
-const H_NOISE = 64 * 2.220446049250313e-16;
 const MAX_INTERVAL_VISITS = 3000;
-const TWO_PI = 2 * Math.PI;
 
 export type ContinuumKind = 'coaxial' | 'on-tube';
 
@@ -73,7 +71,6 @@ const T2 = new Float64Array(9);
 const G = new Float64Array(9);
 const EV = new Float64Array(4);
 const GLO = new Float64Array(INITIAL_INTERVALS + 1);
-const SAMPLE_S = new Float64Array(NEAR_CONTINUUM_SAMPLES + 160);
 const STACK = new Float64Array(6 * 512);
 const H0 = Math.PI / INITIAL_INTERVALS;
 /** Subdivision levels: the switch half-width SWITCH_WIDTH = H0 / 2^MAX_LEVEL is about 1e-6 rad. */
@@ -111,18 +108,6 @@ for (let i = 0; i <= 2 * INITIAL_INTERVALS; i++) {
   }
 }
 
-// Geometry of the current query (module scope so helpers need no arguments).
-// Held in a typed array, not module-level `let`s: doubles stored in closure slots are boxed on every write.
-const GEO = new Float64Array(50);
-const enum Geo {
-  Dx, Dy, Dz, e1x, e1y, e1z, e2x, e2y, e2z, Bx, By, Bz, Nx, Ny, Nz, Ax, Ay, Az, rA, rB,
-  // Part of A(s) - cB normal to B's axis, u(s) = U0 + U1 cos s + U2 sin s, and the coefficients of
-  // z(s) = zD + za cos s + zb sin s and p'(s) = pb cos s - pa sin s: h at any angle from these (see hAtCS).
-  U0x, U0y, U0z, U1x, U1y, U1z, U2x, U2y, U2z, zD, za, zb, pa, pb,
-  // Arguments and results of the hot helpers. V8 boxes every double passed to or returned from a function it
-  // does not inline (isolateMinima, refine and writeRoot are too large to inline): one heap number each.
-  L4, noise, hNoise, lo, hi, gLo, gHi, mid, cMid, sMid, gMid, dgMid, ddgMid, root, cRoot, sRoot,
-}
 
 /**
  * Hot path. Unit normals required. Writes CONTACT_STRIDE floats per local minimum into out
@@ -224,93 +209,6 @@ export function circleContacts(
   if (count > 0) return count;
   lastCertified = false;
   return globalFallback(out);
-}
-
-/**
- * Near-continuum regime (f varies by a tiny fraction of the distance, e.g. within 1e-7 of the tight Hopf
- * arrangement): sign changes of the exact h on a grid, each bracketed root refined on h. Where A passes close
- * to B's axis, f has a cusp-like maximum of width ~ rho_min with minima beside it, so the grid is refined
- * geometrically around the closest approach (steps rho_min/RA * 2^k). A minimum can only be missed if it lies
- * within one grid step of a maximum away from the axis, where f is nearly constant.
- */
-function sampleMinima(out: Float64Array): number {
-  const nS = buildSamples(NEAR_CONTINUUM_SAMPLES);
-  let count = 0;
-  const h0 = hAt(SAMPLE_S[0]!);
-  let hPrev = h0;
-  for (let i = 1; i <= nS && count < MAX_CONTACTS; i++) {
-    const sPrev = SAMPLE_S[i - 1]!;
-    const sv = i === nS ? SAMPLE_S[0]! + TWO_PI : SAMPLE_S[i]!;
-    const h = i === nS ? h0 : hAt(sv);
-    if (hPrev < 0 && h >= 0) writeContact(out, count++, wrapAngle(refineH(sPrev, sv, hPrev, h)));
-    hPrev = h;
-  }
-  return count;
-}
-
-/**
- * Sorted sample angles in SAMPLE_S: n uniform ones plus a geometric grid (steps rho_min/RA * 2^k) around A's
- * closest approach to B's axis, where f has a cusp-like feature of width ~ rho_min. Returns the count.
- */
-function buildSamples(n: number): number {
-  const rA = GEO[Geo.rA]!;
-  const step = TWO_PI / n;
-  let nS = 0;
-  let bestRho = Infinity, bestI = 0;
-  for (let i = 0; i < n; i++) {
-    const sv = i * step;
-    SAMPLE_S[nS++] = sv;
-    const r2 = rho2At(sv);
-    if (r2 < bestRho) { bestRho = r2; bestI = i; }
-  }
-  let lo = (bestI - 1) * step, hi = (bestI + 1) * step;
-  for (let it = 0; it < 80; it++) {
-    const x1 = hi - 0.6180339887498949 * (hi - lo), x2 = lo + 0.6180339887498949 * (hi - lo);
-    if (rho2At(x1) < rho2At(x2)) hi = x2;
-    else lo = x1;
-  }
-  const sc = 0.5 * (lo + hi);
-  const width = Math.max(Math.sqrt(Math.max(rho2At(sc), 0)) / rA, 1e-15);
-  for (let k = -6; k < 60 && width * 2 ** k < step; k++) {
-    SAMPLE_S[nS++] = sc - width * 2 ** k;
-    SAMPLE_S[nS++] = sc + width * 2 ** k;
-  }
-  SAMPLE_S[nS++] = sc;
-  for (let i = 0; i < nS; i++) SAMPLE_S[i] = wrapAngle(SAMPLE_S[i]!);
-  SAMPLE_S.subarray(0, nS).sort();
-  return nS;
-}
-
-/** rho(s)^2: squared distance of A(s) from B's axis. */
-function rho2At(sv: number): number {
-  const Dx = GEO[Geo.Dx]!, Dy = GEO[Geo.Dy]!, Dz = GEO[Geo.Dz]!, e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, rA = GEO[Geo.rA]!;
-  const c = Math.cos(sv), sn = Math.sin(sv);
-  const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
-  const z = dx * Nx + dy * Ny + dz * Nz;
-  const qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
-  return qx * qx + qy * qy + qz * qz;
-}
-
-/**
- * Every periodic f has a minimum, so zero minima means rounding hid the sign pattern (g nearly flat). Take the
- * lowest of a fine sample, polished by golden-section search, so the global distance is still reported.
- */
-function globalFallback(out: Float64Array): number {
-  const n = 720;
-  let best = 0, bestF = Infinity;
-  for (let i = 0; i < n; i++) {
-    const f = fAt((i * TWO_PI) / n);
-    if (f < bestF) { bestF = f; best = i; }
-  }
-  let lo = ((best - 1) * TWO_PI) / n, hi = ((best + 1) * TWO_PI) / n;
-  const gr = 0.6180339887498949;
-  for (let it = 0; it < 60; it++) {
-    const x1 = hi - gr * (hi - lo), x2 = lo + gr * (hi - lo);
-    if (fAt(x1) < fAt(x2)) hi = x2;
-    else lo = x1;
-  }
-  writeContact(out, 0, wrapAngle(0.5 * (lo + hi)));
-  return 1;
 }
 
 // ---------------------------------------------------------------------------------------------------
@@ -424,105 +322,10 @@ function isolateMinima(polishOnH: boolean, out: Float64Array): number {
   return count;
 }
 
-/**
- * A local minimum of f within [m - 2r, m + 2r] found by golden section on f, or NaN when the smallest of
- * f(m - r), f(m), f(m + r) is not interior (f is monotone here) or the minimum is already listed.
- */
-function flatMinimum(m: number, r: number, out: Float64Array, count: number): number {
-  const fl = fAt(m - r), fm = fAt(m), fh = fAt(m + r);
-  if (!(fm <= fl && fm <= fh)) return NaN;
-  const x = goldenOnF(m - r, m + r);
-  return alreadyListed(out, count, x, 4 * r) ? NaN : x;
-}
-
-/** Whether a contact within `width` radians of angle x is already in out[0 .. count). */
-function alreadyListed(out: Float64Array, count: number, x: number, width: number): boolean {
-  for (let k = 0; k < count; k++) {
-    const d = Math.abs(wrapAngle(out[k * CONTACT_STRIDE]!) - wrapAngle(x));
-    if (Math.min(d, TWO_PI - d) < width) return true;
-  }
-  return false;
-}
-
-/**
- * Minimum of f on [lo, hi] by golden-section search (f unimodal there), then bracketed on h when h has a
- * readable sign change close by (golden section alone locates a simple minimum only to ~sqrt(eps)).
- */
-function goldenOnF(lo: number, hi: number): number {
-  const x = goldenSection(lo, hi);
-  const hl = hAt(x - POLISH_STEP), hh = hAt(x + POLISH_STEP);
-  const hn = H_NOISE * HSCALE[0]!;
-  return hl < -hn && hh > hn ? refineH(x - POLISH_STEP, x + POLISH_STEP, hl, hh) : x;
-}
-
-function goldenSection(lo: number, hi: number): number {
-  let x1 = hi - 0.6180339887498949 * (hi - lo), x2 = lo + 0.6180339887498949 * (hi - lo);
-  let f1 = fAt(x1), f2 = fAt(x2);
-  for (let it = 0; it < 80 && hi - lo > ROOT_ANGLE_TOL; it++) {
-    if (f1 < f2) {
-      hi = x2; x2 = x1; f2 = f1;
-      x1 = hi - 0.6180339887498949 * (hi - lo); f1 = fAt(x1);
-    } else {
-      lo = x1; x1 = x2; f1 = f2;
-      x2 = lo + 0.6180339887498949 * (hi - lo); f2 = fAt(x2);
-    }
-  }
-  return 0.5 * (lo + hi);
-}
-
-/** Root of h (read directly, not through g) in [lo, hi] given h(lo) < 0 <= h(hi): Illinois-modified regula falsi. */
-function refineH(lo: number, hi: number, hLo: number, hHi: number): number {
-  let a = lo, b = hi, fa = hLo, fb = hHi;
-  if (fb === 0) return b;
-  let side = 0;
-  for (let it = 0; it < 200 && b - a > ROOT_ANGLE_TOL; it++) {
-    let x = (a * fb - b * fa) / (fb - fa);
-    if (!(x > a && x < b)) x = 0.5 * (a + b);
-    const fx = hAt(x);
-    if (fx === 0) return x;
-    if (fx < 0) {
-      a = x; fa = fx;
-      if (side === -1) fb *= 0.5;
-      side = -1;
-    } else {
-      b = x; fb = fx;
-      if (side === 1) fa *= 0.5;
-      side = 1;
-    }
-  }
-  return 0.5 * (a + b);
-}
-
-/** h(s) = p' rho - RB w' (see hAtCS), read directly rather than through g's coefficients. */
-function hAt(s: number): number {
-  return hAtCS(Math.cos(s), Math.sin(s));
-}
-
-/**
- * h = p' rho - RB w' with w' = p' - 2 z z', from linear forms fixed per query: u = U0 + U1 c + U2 s (the
- * part of A(s) - cB normal to B's axis, so rho = |u| is read without the cancellation of p - z^2), z and p'.
- */
-function hAtCS(c: number, sn: number): number {
-  const ux = GEO[Geo.U0x]! + GEO[Geo.U1x]! * c + GEO[Geo.U2x]! * sn;
-  const uy = GEO[Geo.U0y]! + GEO[Geo.U1y]! * c + GEO[Geo.U2y]! * sn;
-  const uz = GEO[Geo.U0z]! + GEO[Geo.U1z]! * c + GEO[Geo.U2z]! * sn;
-  const za = GEO[Geo.za]!, zb = GEO[Geo.zb]!;
-  const pp = GEO[Geo.pb]! * c - GEO[Geo.pa]! * sn;
-  return pp * Math.sqrt(ux * ux + uy * uy + uz * uz) - GEO[Geo.rB]! * (pp - 2 * (GEO[Geo.zD]! + za * c + zb * sn) * (zb * c - za * sn));
-}
-
-/** Root angles are resolved to this many radians (distance error is quadratic in it, so far below 1e-16). */
-const ROOT_ANGLE_TOL = 1e-13;
 /** Rounding level of the normalised G (sum of |coefficients| = 1). */
 const G_NOISE = 1e-15;
 /** A noise-level g whose slope is below this (normalised g) is a flat, high-order root. */
 const FLAT_SLOPE = 1e-6;
-/** Half-width (radians) of the window searched on f when h sinks into its rounding level. */
-const FLAT_WINDOW = 1e-3;
-/** Offset (radians) at which h is read around a golden-section minimum. */
-const POLISH_STEP = 1e-7;
-/** L^3 of the current query (scale of h's rounding level). */
-const HSCALE = new Float64Array(1);
 
 /**
  * Safeguarded Halley iteration on G in [lo, hi] (GEO slots) with a sign change, started at the midpoint
@@ -578,71 +381,3 @@ function refine(): void {
   setRoot(x, c, sn);
 }
 
-function setRoot(x: number, c: number, sn: number): void {
-  GEO[Geo.root] = x; GEO[Geo.cRoot] = c; GEO[Geo.sRoot] = sn;
-}
-
-/** Root at angle s (cold paths): its cosine and sine from the angle. */
-function rootAt(s: number): void {
-  setRoot(s, Math.cos(s), Math.sin(s));
-}
-
-function writeContact(out: Float64Array, k: number, s: number): void {
-  rootAt(s);
-  writeRoot(out, k);
-}
-
-/** Contact k at angle GEO[Geo.root] of A (cosine and sine in GEO too): its angle, distance and both points. */
-function writeRoot(out: Float64Array, k: number): void {
-  const s = GEO[Geo.root]!, c = GEO[Geo.cRoot]!, sn = GEO[Geo.sRoot]!;
-  const e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Bx = GEO[Geo.Bx]!, By = GEO[Geo.By]!, Bz = GEO[Geo.Bz]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, Ax = GEO[Geo.Ax]!, Ay = GEO[Geo.Ay]!, Az = GEO[Geo.Az]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
-  const px = Ax + rA * (e1x * c + e2x * sn), py = Ay + rA * (e1y * c + e2y * sn), pz = Az + rA * (e1z * c + e2z * sn);
-  const dx = px - Bx, dy = py - By, dz = pz - Bz;
-  const z = dx * Nx + dy * Ny + dz * Nz;
-  let qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
-  const rho = Math.sqrt(qx * qx + qy * qy + qz * qz);
-  if (rho > 0) {
-    qx /= rho; qy /= rho; qz /= rho;
-  } else {
-    basisInto(Nx, Ny, Nz, FR);
-    qx = FR[0]!; qy = FR[1]!; qz = FR[2]!;
-  }
-  const o = k * CONTACT_STRIDE;
-  out[o] = s;
-  out[o + 1] = Math.sqrt(z * z + (rho - rB) * (rho - rB));
-  out[o + 2] = px; out[o + 3] = py; out[o + 4] = pz;
-  out[o + 5] = Bx + rB * qx; out[o + 6] = By + rB * qy; out[o + 7] = Bz + rB * qz;
-}
-
-/** Evenly spaced representatives of a continuum, offset by half a step to avoid the axis crossing at s = π. */
-function writeContinuum(out: Float64Array): number {
-  let count = 0;
-  for (let k = 0; k < CONTINUUM_SAMPLES; k++) {
-    const s = ((k + 0.5) * TWO_PI) / CONTINUUM_SAMPLES;
-    writeContact(out, count++, s);
-  }
-  return count;
-}
-
-/** f(s) = squared distance from A(s) to circle B, from the geometry (not the coefficients). */
-function fAt(s: number): number {
-  const Dx = GEO[Geo.Dx]!, Dy = GEO[Geo.Dy]!, Dz = GEO[Geo.Dz]!, e1x = GEO[Geo.e1x]!, e1y = GEO[Geo.e1y]!, e1z = GEO[Geo.e1z]!, e2x = GEO[Geo.e2x]!, e2y = GEO[Geo.e2y]!, e2z = GEO[Geo.e2z]!, Nx = GEO[Geo.Nx]!, Ny = GEO[Geo.Ny]!, Nz = GEO[Geo.Nz]!, rA = GEO[Geo.rA]!, rB = GEO[Geo.rB]!;
-  const c = Math.cos(s), sn = Math.sin(s);
-  const dx = Dx + rA * (e1x * c + e2x * sn), dy = Dy + rA * (e1y * c + e2y * sn), dz = Dz + rA * (e1z * c + e2z * sn);
-  const z = dx * Nx + dy * Ny + dz * Nz;
-  const ux = dx - z * Nx, uy = dy - z * Ny, uz = dz - z * Nz;
-  const rho = Math.sqrt(ux * ux + uy * uy + uz * uz);
-  return z * z + (rho - rB) * (rho - rB);
-}
-
-/** f is constant along A (a circle on a tube around B): compare f at spread samples and around the axis cusp. */
-function isConstantF(L: number): boolean {
-  const nS = buildSamples(32);
-  let lo = Infinity, hi = -Infinity;
-  for (let k = 0; k < nS; k++) {
-    const d = Math.sqrt(fAt(SAMPLE_S[k]!));
-    if (d < lo) lo = d;
-    if (d > hi) hi = d;
-  }
-  return hi - lo <= CONTINUUM_REL_TOL * L;
-}
