@@ -92,9 +92,9 @@ describe('which symmetry compare breaks', () => {
   });
 
   it('the group read off the poses is the catalogue construction\'s group, for every family', () => {
-    // Internal consistency, no outside source (the groups themselves are checked against the construction in
-    // catalog.test.ts). Two routes to one fact: the catalogue states the group it builds (naturalSymmetry), detection finds
-    // the largest group the generated rings actually have. A larger detected group would mean the
+    // Internal consistency, no outside source (the groups themselves are checked against the construction
+    // in catalog.test.ts). Two routes to one fact: the catalogue states the group it builds (naturalSymmetry),
+    // detection finds the largest group the generated rings actually have. A larger detected group would mean the
     // construction is more symmetric than documented; a smaller one, a construction bug.
     for (const spec of ['hopf', 'chain:3', 'chain:4', 'necklace:3', 'necklace:4', 'necklace:5', 'necklace:6', 'star:3', 'star:4', 'torus:3', 'torus:4', 'torus:5']) {
       const built = naturalSymmetry(parseCatalogSpec(spec));
