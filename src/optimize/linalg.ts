@@ -73,10 +73,3 @@ export function leastSquaresRegularized(A: Matrix, b: ArrayLike<number>): Float6
 
 /** Tikhonov weight of the regularised normal equations, relative to the largest diagonal of AᵀA. */
 const NORMAL_EQ_REG = 1e-14;
-
-/** Matrix from a list of rows of equal length. */
-export function fromRows(rows: ArrayLike<number>[], columns: number): Matrix {
-  const M = new Matrix(rows.length, columns);
-  for (let i = 0; i < rows.length; i++) for (let j = 0; j < columns; j++) M.set(i, j, rows[i]![j]!);
-  return M;
-}
