@@ -3,3 +3,4 @@ export * from './ringDistance.js';
 export * from './pointCircle.js';
 export * from './gradient.js';
 export * from './frame.js';
+export * from './broadphase.js';
