@@ -106,6 +106,18 @@ async function main(): Promise<void> {
   }, REPEATS);
   const kernelQps = PAIRS / kernelSeconds;
 
+  // The library entry point on the same pairs (plain objects out, as library users call it).
+  const circles = views.map((v, i) => [
+    { center: v[0]!, normal: v[1]!, radius: pairs[i * PAIR_STRIDE + 6]! },
+    { center: v[2]!, normal: v[3]!, radius: pairs[i * PAIR_STRIDE + 13]! },
+  ] as const);
+  let libraryContacts = 0;
+  const librarySeconds = timeIt(() => {
+    libraryContacts = 0;
+    for (let i = 0; i < PAIRS; i++) libraryContacts += ringDistance(circles[i]![0], circles[i]![1]).contacts.length;
+  }, REPEATS);
+  const libraryQps = PAIRS / librarySeconds;
+
   // Accuracy against the independent brute force on a subset.
   const ref: number[] = [];
   let kernelErr = 0;
@@ -151,6 +163,7 @@ async function main(): Promise<void> {
   const result = {
     seed: SEED, pairs: PAIRS, repeats: REPEATS,
     kernel: { queriesPerSecond: kernelQps, twoThreadQueriesPerSecond: twoThreadQps, contactsPerQuery: contacts / PAIRS, maxAbsError: kernelErr },
+    ringDistance: { queriesPerSecond: libraryQps, contactsPerQuery: libraryContacts / PAIRS, slowdownVsHotPath: kernelQps / libraryQps },
     baselines, extrapolated,
     speedupAtTarget: extrapolated.map((e) => ({ name: e.name, speedup: e.secondsPerQuery * kernelQps })),
   };
@@ -161,6 +174,7 @@ async function main(): Promise<void> {
   const f = (x: number, d = 3) => x.toExponential(d);
   console.log(`kernel benchmark (seed ${SEED}, ${PAIRS} pairs, median of ${REPEATS} after warm-up)`);
   console.log(`  exact kernel, 1 thread : ${Math.round(kernelQps).toLocaleString('en-US')} queries/s, ${(contacts / PAIRS).toFixed(2)} contacts/query, max error ${f(kernelErr)} (length units, radii 0.5-1.5)`);
+  console.log(`  ringDistance (library) : ${Math.round(libraryQps).toLocaleString('en-US')} queries/s, ${(libraryContacts / PAIRS).toFixed(2)} contacts/query, ${(kernelQps / libraryQps).toFixed(2)}x the hot path's time`);
   console.log(`  exact kernel, 2 threads: ${Math.round(twoThreadQps).toLocaleString('en-US')} queries/s`);
   console.log('  baselines (same run, same pairs):');
   for (const b of baselines) console.log(`    ${b.name.padEnd(32)} N=${String(b.n).padEnd(6)} ${f(b.secondsPerQuery)} s/query  max error ${f(b.maxError)}`);

@@ -35,7 +35,9 @@ import {
   CONTINUUM_REL_TOL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, ROOT_ANGLE_TOL, rootAt, setRoot, writeContact, writeContinuum, writeRoot,
 } from './queryGeometry.js';
 import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima } from './exactFallbacks.js';
+import { addAxisFamilyToContinuum, axisTolerance, expandAxisContacts } from './axisContinuum.js';
 
+import { CONTINUUM_SAMPLES } from './queryGeometry.js';
 export { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, MAX_CONTACTS } from './queryGeometry.js';
 
 /** Relative size of g below which the continuum test is run (cheap pre-filter). */
@@ -52,6 +54,15 @@ export type ContinuumKind = 'coaxial' | 'on-tube';
 
 let lastKind: ContinuumKind | null = null;
 let lastCertified = true;
+let lastSides = 0;
+/**
+ * Which whole circles the last circleContacts call's continuum runs along: 1 = along A (A on a tube around B,
+ * or coaxial), 2 = around B (A passes through B's centre along B's axis, so B lies on a tube around A), 3 = both
+ * (the tight Hopf link); 0 for isolated minima.
+ */
+export function lastContinuumSides(): number {
+  return lastSides;
+}
 /** Whether the last circleContacts call isolated its minima with certified bounds (see RingDistance). */
 export function lastCertifiedResult(): boolean {
   return lastCertified;
@@ -131,6 +142,7 @@ export function circleContacts(
   GEO[Geo.Nx] = Nx; GEO[Geo.Ny] = Ny; GEO[Geo.Nz] = Nz;
   GEO[Geo.Ax] = Ax; GEO[Geo.Ay] = Ay; GEO[Geo.Az] = Az;
   GEO[Geo.rA] = RA; GEO[Geo.rB] = RB;
+  GEO[Geo.minRho] = Infinity;
   const dd = Dx * Dx + Dy * Dy + Dz * Dz;
   const L = RA + RB + Math.sqrt(dd);
 
@@ -144,6 +156,7 @@ export function circleContacts(
   if (cxn * RA <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L) {
     lastKind = 'coaxial';
     lastCertified = true;
+    lastSides = 1;
     return writeContinuum(out);
   }
 
@@ -176,10 +189,20 @@ export function circleContacts(
   if (gNorm <= G_SMALL_REL * gScale && isConstantF(L)) {
     lastKind = 'on-tube';
     lastCertified = true;
-    return writeContinuum(out);
+    const n = addAxisFamilyToContinuum(out, writeContinuum(out), L);
+    lastSides = n > CONTINUUM_SAMPLES ? 3 : 1;
+    return n;
   }
   lastKind = null;
-  if (gNorm === 0) return globalFallback(out);
+  lastSides = 0;
+  HSCALE[0] = L * L * L;
+  GEO[Geo.hNoise] = H_NOISE * HSCALE[0]!;
+  if (gNorm === 0) {
+    // g vanishes identically: A lies on the quartic surface of a torus around B, partly on the true tube (f
+    // constant there, the highest f takes) and partly on its inner sheet; read the minima from the exact h.
+    lastCertified = false;
+    return finish(sampleMinima(out), out, L);
+  }
 
   // Normalise g so tolerances are relative.
   const inv = 1 / gNorm;
@@ -199,16 +222,31 @@ export function circleContacts(
   const relative = gNorm / gScale;
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
   lastCertified = true;
-  HSCALE[0] = L * L * L;
-  GEO[Geo.L4] = L4; GEO[Geo.noise] = (2 * EPS) / relative; GEO[Geo.hNoise] = H_NOISE * HSCALE[0]!;
+  GEO[Geo.L4] = L4; GEO[Geo.noise] = (2 * EPS) / relative;
   let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(relative < WELL_CONDITIONED_REL, out);
   if (count < 0) {
     lastCertified = false;
     count = sampleMinima(out);
   }
-  if (count > 0) return count;
-  lastCertified = false;
-  return globalFallback(out);
+  return finish(count, out, L);
+}
+
+/**
+ * Every periodic f has a minimum: none found means rounding hid the sign pattern, so take the global one. A
+ * minimum on B's axis is a whole circle of closest pairs around B (see axisContinuum.ts; cold path).
+ */
+function finish(count: number, out: Float64Array, L: number): number {
+  if (count <= 0) {
+    lastCertified = false;
+    count = globalFallback(out);
+  }
+  if (!(GEO[Geo.minRho]! <= axisTolerance(L))) return count;
+  const n = expandAxisContacts(out, count, L);
+  if (n > count) {
+    lastKind = 'on-tube';
+    lastSides = 2;
+  }
+  return n;
 }
 
 // ---------------------------------------------------------------------------------------------------
