@@ -34,7 +34,7 @@ import { basisInto, wrapAngle } from './frame.js';
 import {
   CONTINUUM_REL_TOL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, ROOT_ANGLE_TOL, rootAt, setRoot, writeContact, writeContinuum, writeRoot,
 } from './queryGeometry.js';
-import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima } from './exactFallbacks.js';
+import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima, windowMinimum } from './exactFallbacks.js';
 import { addAxisFamilyToContinuum, axisTolerance, expandAxisContacts } from './axisContinuum.js';
 
 import { CONTINUUM_SAMPLES } from './queryGeometry.js';
@@ -153,7 +153,12 @@ export function circleContacts(
   const cxn = Math.sqrt(cx * cx + cy * cy + cz * cz);
   const ox = Dx - zD * Nx, oy = Dy - zD * Ny, oz = Dz - zD * Nz;
   const off = Math.sqrt(ox * ox + oy * oy + oz * oz);
-  if (cxn * RA <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L) {
+  // Decided on quantities symmetric in A and B (the larger radius; both centres' offsets from the other's axis),
+  // so swapping the rings cannot flip the verdict.
+  const zA = nA[0]! * Dx + nA[1]! * Dy + nA[2]! * Dz;
+  const oax = Dx - zA * nA[0]!, oay = Dy - zA * nA[1]!, oaz = Dz - zA * nA[2]!;
+  const offA = Math.sqrt(oax * oax + oay * oay + oaz * oaz);
+  if (cxn * (RA > RB ? RA : RB) <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L && offA <= CONTINUUM_REL_TOL * L) {
     lastKind = 'coaxial';
     lastCertified = true;
     lastSides = 1;
@@ -339,8 +344,14 @@ function isolateMinima(polishOnH: boolean, out: Float64Array): number {
       } else if (sLo < 0 && sHi === 0 && count < MAX_CONTACTS) {
         // h falls into its rounding level here: either a root on the shared end, or a flat high-order minimum
         // (A running along B's axis) somewhere inside the dead zone. Polish on f itself over a window.
-        const root = goldenOnF(m + r - FLAT_WINDOW, m + r + FLAT_WINDOW);
-        if (!alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
+        const root = windowMinimum(m + r - FLAT_WINDOW, m + r + FLAT_WINDOW);
+        if (root === root && !alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
+      } else if (sLo === 0 && sHi > 0 && count < MAX_CONTACTS) {
+        // The mirror case: a minimum on the shared lower end whose g value came out beyond g's rounding level
+        // on this side, so the lower interval saw no sign change of g and skipped it. Whichever side reaches it
+        // first lists it (alreadyListed stops the other).
+        const root = windowMinimum(m - r - FLAT_WINDOW, m - r + FLAT_WINDOW);
+        if (root === root && !alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
       } else if (floor && (sLo === 0 || sHi === 0) && count < MAX_CONTACTS) {
         // h vanishes to high order here (A runs along B's axis, e.g. B a meridian of A's tube): f is smooth
         // but its slope is below rounding, so compare f itself and polish by golden section.

@@ -123,7 +123,9 @@ export function globalFallback(out: Float64Array): number {
  */
 export function flatMinimum(m: number, r: number, out: Float64Array, count: number): number {
   const fl = fAt(m - r), fm = fAt(m), fh = fAt(m + r);
-  if (!(fm <= fl && fm <= fh)) return NaN;
+  // A flat maximum (near-coaxial rings: f varies by rounding over the window) can pass fm <= fl, fh by chance:
+  // ask for a rise above f's rounding level on at least one side.
+  if (!(fm <= fl && fm <= fh) || Math.max(fl, fh) - fm <= F_NOISE * Math.cbrt(HSCALE[0]!) ** 2) return NaN;
   const x = goldenOnF(m - r, m + r);
   return alreadyListed(out, count, x, 4 * r) ? NaN : x;
 }
@@ -146,6 +148,16 @@ export function goldenOnF(lo: number, hi: number): number {
   const hl = hAt(x - POLISH_STEP), hh = hAt(x + POLISH_STEP);
   const hn = H_NOISE * HSCALE[0]!;
   return hl < -hn && hh > hn ? refineH(x - POLISH_STEP, x + POLISH_STEP, hl, hh) : x;
+}
+
+/**
+ * goldenOnF, but NaN when the smallest f of the window lies at one of its ends (f monotone there: A passing by
+ * B's axis makes h vanish into rounding at a kink of f that is a maximum, and the window then only slopes).
+ */
+export function windowMinimum(lo: number, hi: number): number {
+  const x = goldenOnF(lo, hi);
+  const edge = 0.01 * (hi - lo);
+  return x - lo > edge && hi - x > edge ? x : NaN;
 }
 
 function goldenSection(lo: number, hi: number): number {

@@ -96,10 +96,17 @@ export function writeRoot(out: Float64Array, k: number): void {
   const dx = px - Bx, dy = py - By, dz = pz - Bz;
   const z = dx * Nx + dy * Ny + dz * Nz;
   let qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
-  const rho = Math.sqrt(qx * qx + qy * qy + qz * qz);
-  if (rho > 0) {
+  // Project out B's normal a second time: next to B's axis the first pass leaves a part along it of eps |z|,
+  // which normalising by a small rho would turn into a foot point off B's plane.
+  const z2 = qx * Nx + qy * Ny + qz * Nz;
+  qx -= z2 * Nx; qy -= z2 * Ny; qz -= z2 * Nz;
+  let rho = Math.sqrt(qx * qx + qy * qy + qz * qz);
+  // On B's axis to rounding (rho at the rounding level of the projection, eps |z|) q has no direction, not even
+  // one in B's plane: every point of B is equally near, take the frame's angle-0 point.
+  if (rho > 8 * 2.220446049250313e-16 * Math.abs(z)) {
     qx /= rho; qy /= rho; qz /= rho;
   } else {
+    rho = 0;
     basisInto(Nx, Ny, Nz, FR);
     qx = FR[0]!; qy = FR[1]!; qz = FR[2]!;
   }

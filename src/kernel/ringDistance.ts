@@ -37,13 +37,27 @@ const NA = new Float64Array(3);
 const NB = new Float64Array(3);
 const EB = new Float64Array(6);
 
-/** Library entry point: normals need not be unit. The answer does not depend on the order of a and b. */
+/**
+ * Library entry point: normals need not be unit. The answer does not depend on the order of a and b: the
+ * kernel parametrises the ring that comes first in a fixed order of the data (radius, then centre, then normal)
+ * and the result is swapped back. Each order alone finds the same pairs (tests/properties/kernel.props.ts), but
+ * the continuum tests of the two sides are different computations, so a pair within rounding of their
+ * tolerance could otherwise be called degenerate from one side only.
+ */
 export function ringDistance(a: Circle, b: Circle): RingDistance {
+  return firstInOrder(b, a) ? ringDistanceOneSided(b, a, true) : ringDistanceOneSided(a, b, false);
+}
+
+/**
+ * The kernel's answer parametrising a (its contacts' onA lie on a), reported as ringDistance(a, b) would, or
+ * as ringDistance(b, a) when `swap` (points and angles exchanged). For tests of each side of the method.
+ */
+export function ringDistanceOneSided(a: Circle, b: Circle, swap = false): RingDistance {
   unitInto(a.normal, NA);
   unitInto(b.normal, NB);
   const count = circleContacts(a.center, NA, a.radius, b.center, NB, b.radius, OUT);
   const kind = lastContinuum();
-  const sides = lastContinuumSides();
+  let sides = lastContinuumSides();
   const certified = lastCertifiedResult();
   basisInto(NB[0]!, NB[1]!, NB[2]!, EB);
   const e1x = EB[0]!, e1y = EB[1]!, e1z = EB[2]!, e2x = EB[3]!, e2y = EB[4]!, e2z = EB[5]!;
@@ -56,21 +70,26 @@ export function ringDistance(a: Circle, b: Circle): RingDistance {
     const ux = qx - bx, uy = qy - by, uz = qz - bz;
     const d = OUT[o + 1]!;
     if (d < distance) distance = d;
-    contacts[i] = {
-      onA: [OUT[o + 2]!, OUT[o + 3]!, OUT[o + 4]!],
-      onB: [qx, qy, qz],
-      distance: d,
-      angleA: OUT[o]!,
-      angleB: wrapAngle(Math.atan2(ux * e2x + uy * e2y + uz * e2z, ux * e1x + uy * e1y + uz * e1z)),
-    };
+    const pa: Vec3 = [OUT[o + 2]!, OUT[o + 3]!, OUT[o + 4]!], pb: Vec3 = [qx, qy, qz];
+    const ta = OUT[o]!, tb = wrapAngle(Math.atan2(ux * e2x + uy * e2y + uz * e2z, ux * e1x + uy * e1y + uz * e1z));
+    contacts[i] = swap ? { onA: pb, onB: pa, distance: d, angleA: tb, angleB: ta } : { onA: pa, onB: pb, distance: d, angleA: ta, angleB: tb };
   }
+  if (swap) sides = ((sides & 1) << 1) | ((sides & 2) >> 1);
   return {
     distance,
     contacts,
     degenerate: kind !== null,
-    continuum: kind === null ? null : { kind, description: describe(kind, sides, distance, a, b) },
+    continuum: kind === null ? null : { kind, description: swap ? describe(kind, sides, distance, b, a) : describe(kind, sides, distance, a, b) },
     certified,
   };
+}
+
+/** Whether x comes strictly before y in the fixed order: radius, then centre, then normal, component by component. */
+function firstInOrder(x: Circle, y: Circle): boolean {
+  if (x.radius !== y.radius) return x.radius < y.radius;
+  for (let k = 0; k < 3; k++) if (x.center[k] !== y.center[k]) return x.center[k]! < y.center[k]!;
+  for (let k = 0; k < 3; k++) if (x.normal[k] !== y.normal[k]) return x.normal[k]! < y.normal[k]!;
+  return false;
 }
 
 function unitInto(v: ArrayLike<number>, out: Float64Array): void {
