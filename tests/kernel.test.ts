@@ -501,6 +501,18 @@ describe('regressions: symmetric poses and argument order', () => {
     for (const m of ref) expect(r.contacts.some((k) => Math.abs(k.distance - m.d) < 1e-10)).toBe(true);
   });
 
+  it('an upright ring through the centre moved 1e4 away: one strut, not a continuum, from both sides', () => {
+    // The upright pose above (RB = 0.15 RA, so d = RA - 2 RB by the hand derivation) as the property families
+    // produced it 1e4 away: rounding puts B's passage through A's axis ~1e-12 off it, where f's smooth maximum
+    // gets a crater of depth ~1e-13, which B's side once took for a circle of closest pairs around A.
+    const a = circle([10000, -6000, 8000], [-0.9999999987174352, 0, -0.0000506471121659472], 0.6991216543205586);
+    const b = circle([10000.000005311274, -6000, 7999.895131751987], [0, -1, 0], 0.10486824814808379);
+    for (const r of [ringDistanceOneSided(a, b), ringDistanceOneSided(b, a, true)]) {
+      expect(r.distance).toBeCloseTo(a.radius - 2 * b.radius, 10);
+      expect(r.degenerate).toBe(false);
+    }
+  });
+
   it('ringDistance(a, b) and ringDistance(b, a) are the same answer with the points exchanged', () => {
     // Symmetry of the distance (a fact of the definition); a near-coaxial pair tilted by 2e-12 sits on the
     // continuum test's tolerance, where the two sides once disagreed on `degenerate`.

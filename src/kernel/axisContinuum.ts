@@ -4,7 +4,7 @@
 // circleContacts detects as a continuum along B; seen from A's side it must be found here, or the answer would
 // depend on the order of the arguments. Cold path: runs only when a contact lies on B's axis.
 import { basisInto } from './frame.js';
-import { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, GEO, Geo, MAX_CONTACTS, TWO_PI } from './queryGeometry.js';
+import { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, fAt, GEO, Geo, MAX_CONTACTS, TWO_PI } from './queryGeometry.js';
 
 const FR = new Float64Array(6);
 
@@ -21,12 +21,24 @@ export function axisTolerance(L: number): number {
  * (that point of A, B(t_k)), t_k = (k + 1/2) 2π / CONTINUUM_SAMPLES in B's own frame (basisInto(nB)), so B's side
  * of the query lists the same points. Returns the new count (unchanged when no contact is on the axis).
  */
-export function expandAxisContacts(out: Float64Array, count: number, L: number): number {
+export function expandAxisContacts(out: Float64Array, n: number, L: number): number {
+  let count = n;
   const tol = axisTolerance(L);
+  const fNoise = F_NOISE_REL * L * L;
   for (let k = 0; k < count; k++) {
     const o = k * CONTACT_STRIDE;
     if (rhoOf(out[o + 2]!, out[o + 3]!, out[o + 4]!) > tol || count - 1 + CONTINUUM_SAMPLES > MAX_CONTACTS) continue;
     let s = out[o]!, px = out[o + 2]!, py = out[o + 3]!, pz = out[o + 4]!;
+    // Passing within rounding of B's axis where f has a smooth maximum leaves a crater of width ~sqrt(rho) and
+    // depth ~RB rho at the top: a "minimum" below the kernel's resolution, not a circle of closest pairs. A genuine
+    // minimum on the axis (B a meridian of A's tube) rises on both sides at a wider probe: drop the rest.
+    const f0 = fAt(s);
+    if (fAt(s - AXIS_PROBE) < f0 - fNoise || fAt(s + AXIS_PROBE) < f0 - fNoise) {
+      out.copyWithin(o, o + CONTACT_STRIDE, count * CONTACT_STRIDE);
+      count--;
+      k--;
+      continue;
+    }
     // A minimum of f on B's axis is B's centre (f' = 0 there needs z = 0), but a flat minimum (A running along
     // B's axis) is located only to ~sqrt(eps) along the axis: take the point of A nearest B's centre instead.
     if (nearestToCentre() && Math.hypot(NP[1]! - px, NP[2]! - py, NP[3]! - pz) <= SNAP_REL * L) {
@@ -50,6 +62,11 @@ export function addAxisFamilyToContinuum(out: Float64Array, count: number, L: nu
   if (Math.sqrt(gx * gx + gy * gy + gz * gz) > axisTolerance(L)) return count;
   return writeAxisFamily(out, count, NP[0]!, NP[1]!, NP[2]!, NP[3]!);
 }
+
+/** Offset (radians) at which a minimum on B's axis must rise on both sides; far beyond any rounding crater. */
+const AXIS_PROBE = 1e-4;
+/** Rounding level of f relative to L^2. */
+const F_NOISE_REL = 8 * 2.220446049250313e-16;
 
 /** Below this distance (relative to L) a contact on B's axis is snapped to the point of A nearest B's centre. */
 const SNAP_REL = 1e-6;

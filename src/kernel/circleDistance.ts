@@ -251,7 +251,9 @@ function finish(count: number, out: Float64Array, L: number): number {
     lastKind = 'on-tube';
     lastSides = 2;
   }
-  return n;
+  if (n > 0) return n;
+  lastCertified = false;
+  return globalFallback(out);
 }
 
 // ---------------------------------------------------------------------------------------------------
