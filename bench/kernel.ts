@@ -106,6 +106,38 @@ async function main(): Promise<void> {
   }, REPEATS);
   const kernelQps = PAIRS / kernelSeconds;
 
+  // The library entry point on the same pairs (plain objects out, as library users call it).
+  const circles = views.map((v, i) => [
+    { center: v[0]!, normal: v[1]!, radius: pairs[i * PAIR_STRIDE + 6]! },
+    { center: v[2]!, normal: v[3]!, radius: pairs[i * PAIR_STRIDE + 13]! },
+  ] as const);
+  let libraryContacts = 0;
+  const librarySweep = () => {
+    libraryContacts = 0;
+    for (let i = 0; i < PAIRS; i++) libraryContacts += ringDistance(circles[i]![0], circles[i]![1]).contacts.length;
+  };
+  const hotSweep = () => {
+    for (let i = 0; i < PAIRS; i++) {
+      const v = views[i]!;
+      circleContacts(v[0]!, v[1]!, pairs[i * PAIR_STRIDE + 6]!, v[2]!, v[3]!, pairs[i * PAIR_STRIDE + 13]!, out);
+    }
+  };
+  // Interleaved with the hot path, round by round, so load from other processes hits both alike; the ratio is
+  // the median of the per-round ratios.
+  librarySweep(); hotSweep();
+  const libT: number[] = [], ratio: number[] = [];
+  for (let k = 0; k < 2 * REPEATS + 1; k++) {
+    const t0 = process.hrtime.bigint();
+    hotSweep();
+    const t1 = process.hrtime.bigint();
+    librarySweep();
+    const t2 = process.hrtime.bigint();
+    libT.push(Number(t2 - t1) / 1e9);
+    ratio.push(Number(t2 - t1) / Number(t1 - t0));
+  }
+  const libraryQps = PAIRS / median(libT);
+  const libraryRatio = median(ratio);
+
   // Accuracy against the independent brute force on a subset.
   const ref: number[] = [];
   let kernelErr = 0;
@@ -151,6 +183,7 @@ async function main(): Promise<void> {
   const result = {
     seed: SEED, pairs: PAIRS, repeats: REPEATS,
     kernel: { queriesPerSecond: kernelQps, twoThreadQueriesPerSecond: twoThreadQps, contactsPerQuery: contacts / PAIRS, maxAbsError: kernelErr },
+    ringDistance: { queriesPerSecond: libraryQps, contactsPerQuery: libraryContacts / PAIRS, slowdownVsHotPath: libraryRatio },
     baselines, extrapolated,
     speedupAtTarget: extrapolated.map((e) => ({ name: e.name, speedup: e.secondsPerQuery * kernelQps })),
   };
@@ -161,6 +194,7 @@ async function main(): Promise<void> {
   const f = (x: number, d = 3) => x.toExponential(d);
   console.log(`kernel benchmark (seed ${SEED}, ${PAIRS} pairs, median of ${REPEATS} after warm-up)`);
   console.log(`  exact kernel, 1 thread : ${Math.round(kernelQps).toLocaleString('en-US')} queries/s, ${(contacts / PAIRS).toFixed(2)} contacts/query, max error ${f(kernelErr)} (length units, radii 0.5-1.5)`);
+  console.log(`  ringDistance (library) : ${Math.round(libraryQps).toLocaleString('en-US')} queries/s, ${(libraryContacts / PAIRS).toFixed(2)} contacts/query, ${libraryRatio.toFixed(2)}x the hot path's time (median of interleaved rounds)`);
   console.log(`  exact kernel, 2 threads: ${Math.round(twoThreadQps).toLocaleString('en-US')} queries/s`);
   console.log('  baselines (same run, same pairs):');
   for (const b of baselines) console.log(`    ${b.name.padEnd(32)} N=${String(b.n).padEnd(6)} ${f(b.secondsPerQuery)} s/query  max error ${f(b.maxError)}`);

@@ -34,8 +34,10 @@ import { basisInto, wrapAngle } from './frame.js';
 import {
   CONTINUUM_REL_TOL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, ROOT_ANGLE_TOL, rootAt, setRoot, writeContact, writeContinuum, writeRoot,
 } from './queryGeometry.js';
-import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima } from './exactFallbacks.js';
+import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima, windowMinimum } from './exactFallbacks.js';
+import { addAxisFamilyToContinuum, axisTolerance, expandAxisContacts } from './axisContinuum.js';
 
+import { CONTINUUM_SAMPLES } from './queryGeometry.js';
 export { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, MAX_CONTACTS } from './queryGeometry.js';
 
 /** Relative size of g below which the continuum test is run (cheap pre-filter). */
@@ -52,6 +54,15 @@ export type ContinuumKind = 'coaxial' | 'on-tube';
 
 let lastKind: ContinuumKind | null = null;
 let lastCertified = true;
+let lastSides = 0;
+/**
+ * Which whole circles the last circleContacts call's continuum runs along: 1 = along A (A on a tube around B,
+ * or coaxial), 2 = around B (A passes through B's centre along B's axis, so B lies on a tube around A), 3 = both
+ * (the tight Hopf link); 0 for isolated minima.
+ */
+export function lastContinuumSides(): number {
+  return lastSides;
+}
 /** Whether the last circleContacts call isolated its minima with certified bounds (see RingDistance). */
 export function lastCertifiedResult(): boolean {
   return lastCertified;
@@ -131,6 +142,7 @@ export function circleContacts(
   GEO[Geo.Nx] = Nx; GEO[Geo.Ny] = Ny; GEO[Geo.Nz] = Nz;
   GEO[Geo.Ax] = Ax; GEO[Geo.Ay] = Ay; GEO[Geo.Az] = Az;
   GEO[Geo.rA] = RA; GEO[Geo.rB] = RB;
+  GEO[Geo.minRho] = Infinity;
   const dd = Dx * Dx + Dy * Dy + Dz * Dz;
   const L = RA + RB + Math.sqrt(dd);
 
@@ -141,9 +153,15 @@ export function circleContacts(
   const cxn = Math.sqrt(cx * cx + cy * cy + cz * cz);
   const ox = Dx - zD * Nx, oy = Dy - zD * Ny, oz = Dz - zD * Nz;
   const off = Math.sqrt(ox * ox + oy * oy + oz * oz);
-  if (cxn * RA <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L) {
+  // Decided on quantities symmetric in A and B (the larger radius; both centres' offsets from the other's axis),
+  // so swapping the rings cannot flip the verdict.
+  const zA = nA[0]! * Dx + nA[1]! * Dy + nA[2]! * Dz;
+  const oax = Dx - zA * nA[0]!, oay = Dy - zA * nA[1]!, oaz = Dz - zA * nA[2]!;
+  const offA = Math.sqrt(oax * oax + oay * oay + oaz * oaz);
+  if (cxn * (RA > RB ? RA : RB) <= CONTINUUM_REL_TOL * L && off <= CONTINUUM_REL_TOL * L && offA <= CONTINUUM_REL_TOL * L) {
     lastKind = 'coaxial';
     lastCertified = true;
+    lastSides = 1;
     return writeContinuum(out);
   }
 
@@ -176,10 +194,20 @@ export function circleContacts(
   if (gNorm <= G_SMALL_REL * gScale && isConstantF(L)) {
     lastKind = 'on-tube';
     lastCertified = true;
-    return writeContinuum(out);
+    const n = addAxisFamilyToContinuum(out, writeContinuum(out), L);
+    lastSides = n > CONTINUUM_SAMPLES ? 3 : 1;
+    return n;
   }
   lastKind = null;
-  if (gNorm === 0) return globalFallback(out);
+  lastSides = 0;
+  HSCALE[0] = L * L * L;
+  GEO[Geo.hNoise] = H_NOISE * HSCALE[0]!;
+  if (gNorm === 0) {
+    // g vanishes identically: A lies on the quartic surface of a torus around B, partly on the true tube (f
+    // constant there, the highest f takes) and partly on its inner sheet; read the minima from the exact h.
+    lastCertified = false;
+    return finish(sampleMinima(out), out, L);
+  }
 
   // Normalise g so tolerances are relative.
   const inv = 1 / gNorm;
@@ -199,14 +227,31 @@ export function circleContacts(
   const relative = gNorm / gScale;
   // Near a continuum g is formed by cancellation and its coefficients are mostly rounding: read the exact h.
   lastCertified = true;
-  HSCALE[0] = L * L * L;
-  GEO[Geo.L4] = L4; GEO[Geo.noise] = (2 * EPS) / relative; GEO[Geo.hNoise] = H_NOISE * HSCALE[0]!;
+  GEO[Geo.L4] = L4; GEO[Geo.noise] = (2 * EPS) / relative;
   let count = relative < NEAR_CONTINUUM_REL ? -1 : isolateMinima(relative < WELL_CONDITIONED_REL, out);
   if (count < 0) {
     lastCertified = false;
     count = sampleMinima(out);
   }
-  if (count > 0) return count;
+  return finish(count, out, L);
+}
+
+/**
+ * Every periodic f has a minimum: none found means rounding hid the sign pattern, so take the global one. A
+ * minimum on B's axis is a whole circle of closest pairs around B (see axisContinuum.ts; cold path).
+ */
+function finish(count: number, out: Float64Array, L: number): number {
+  if (count <= 0) {
+    lastCertified = false;
+    count = globalFallback(out);
+  }
+  if (!(GEO[Geo.minRho]! <= axisTolerance(L))) return count;
+  const n = expandAxisContacts(out, count, L);
+  if (n > count) {
+    lastKind = 'on-tube';
+    lastSides = 2;
+  }
+  if (n > 0) return n;
   lastCertified = false;
   return globalFallback(out);
 }
@@ -301,8 +346,14 @@ function isolateMinima(polishOnH: boolean, out: Float64Array): number {
       } else if (sLo < 0 && sHi === 0 && count < MAX_CONTACTS) {
         // h falls into its rounding level here: either a root on the shared end, or a flat high-order minimum
         // (A running along B's axis) somewhere inside the dead zone. Polish on f itself over a window.
-        const root = goldenOnF(m + r - FLAT_WINDOW, m + r + FLAT_WINDOW);
-        if (!alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
+        const root = windowMinimum(m + r - FLAT_WINDOW, m + r + FLAT_WINDOW);
+        if (root === root && !alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
+      } else if (sLo === 0 && sHi > 0 && count < MAX_CONTACTS) {
+        // The mirror case: a minimum on the shared lower end whose g value came out beyond g's rounding level
+        // on this side, so the lower interval saw no sign change of g and skipped it. Whichever side reaches it
+        // first lists it (alreadyListed stops the other).
+        const root = windowMinimum(m - r - FLAT_WINDOW, m - r + FLAT_WINDOW);
+        if (root === root && !alreadyListed(out, count, root, FLAT_WINDOW)) writeContact(out, count++, wrapAngle(root));
       } else if (floor && (sLo === 0 || sHi === 0) && count < MAX_CONTACTS) {
         // h vanishes to high order here (A runs along B's axis, e.g. B a meridian of A's tube): f is smooth
         // but its slope is below rounding, so compare f itself and polish by golden section.

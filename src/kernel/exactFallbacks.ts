@@ -24,6 +24,14 @@ const POLISH_STEP = 1e-7;
  */
 export function sampleMinima(out: Float64Array): number {
   const nS = buildSamples(NEAR_CONTINUUM_SAMPLES);
+  // Where f is constant on an arc (A on the tube around B between two crossings of B's axis, the rest of A
+  // nearer) h is pure rounding and changes sign at random, and such an arc is always f's highest level (on the
+  // rest of A, f = c^2 - 4 RB rho lies below the arc's c^2). So a root whose f is within rounding of the largest
+  // sampled f is no minimum. (A genuine minimum that close to the maximum would make f constant to rounding,
+  // which the continuum test reports first.)
+  let fMax = 0;
+  for (let i = 0; i < nS; i++) fMax = Math.max(fMax, fAt(SAMPLE_S[i]!));
+  const fTop = fMax - F_NOISE * Math.cbrt(HSCALE[0]!) ** 2;
   let count = 0;
   const h0 = hAt(SAMPLE_S[0]!);
   let hPrev = h0;
@@ -31,11 +39,17 @@ export function sampleMinima(out: Float64Array): number {
     const sPrev = SAMPLE_S[i - 1]!;
     const sv = i === nS ? SAMPLE_S[0]! + TWO_PI : SAMPLE_S[i]!;
     const h = i === nS ? h0 : hAt(sv);
-    if (hPrev < 0 && h >= 0) writeContact(out, count++, wrapAngle(refineH(sPrev, sv, hPrev, h)));
+    if (hPrev < 0 && h >= 0) {
+      const root = refineH(sPrev, sv, hPrev, h);
+      if (fAt(root) < fTop) writeContact(out, count++, wrapAngle(root));
+    }
     hPrev = h;
   }
   return count;
 }
+
+/** Rounding level of f relative to L^2. */
+const F_NOISE = 8 * 2.220446049250313e-16;
 
 /**
  * Sorted sample angles in SAMPLE_S: n uniform ones plus a geometric grid (steps rho_min/RA * 2^k) around A's
@@ -109,7 +123,9 @@ export function globalFallback(out: Float64Array): number {
  */
 export function flatMinimum(m: number, r: number, out: Float64Array, count: number): number {
   const fl = fAt(m - r), fm = fAt(m), fh = fAt(m + r);
-  if (!(fm <= fl && fm <= fh)) return NaN;
+  // A flat maximum (near-coaxial rings: f varies by rounding over the window) can pass fm <= fl, fh by chance:
+  // ask for a rise above f's rounding level on at least one side.
+  if (!(fm <= fl && fm <= fh) || Math.max(fl, fh) - fm <= F_NOISE * Math.cbrt(HSCALE[0]!) ** 2) return NaN;
   const x = goldenOnF(m - r, m + r);
   return alreadyListed(out, count, x, 4 * r) ? NaN : x;
 }
@@ -132,6 +148,16 @@ export function goldenOnF(lo: number, hi: number): number {
   const hl = hAt(x - POLISH_STEP), hh = hAt(x + POLISH_STEP);
   const hn = H_NOISE * HSCALE[0]!;
   return hl < -hn && hh > hn ? refineH(x - POLISH_STEP, x + POLISH_STEP, hl, hh) : x;
+}
+
+/**
+ * goldenOnF, but NaN when the smallest f of the window lies at one of its ends (f monotone there: A passing by
+ * B's axis makes h vanish into rounding at a kink of f that is a maximum, and the window then only slopes).
+ */
+export function windowMinimum(lo: number, hi: number): number {
+  const x = goldenOnF(lo, hi);
+  const edge = 0.01 * (hi - lo);
+  return x - lo > edge && hi - x > edge ? x : NaN;
 }
 
 function goldenSection(lo: number, hi: number): number {

@@ -7,7 +7,11 @@ import { basisInto } from './frame.js';
 export const CONTACT_STRIDE = 8;
 /** At most 4 isolated local minima exist (degree-8 stationary equation); continua use CONTINUUM_SAMPLES. */
 export const CONTINUUM_SAMPLES = 12;
-export const MAX_CONTACTS = 16;
+/**
+ * Room for the worst case: the continuum along A (CONTINUUM_SAMPLES), the continuum around B where A passes
+ * through B's centre along B's axis (CONTINUUM_SAMPLES more; the tight Hopf link has both), a few isolated minima.
+ */
+export const MAX_CONTACTS = 2 * CONTINUUM_SAMPLES + 8;
 /** Relative size (to the length scale) of the spread of f below which f is taken as constant (a continuum). */
 export const CONTINUUM_REL_TOL = 1e-12;
 export const TWO_PI = 2 * Math.PI;
@@ -22,7 +26,7 @@ const FR = new Float64Array(6);
 
 // Geometry of the current query (module scope so helpers need no arguments).
 // Held in a typed array, not module-level `let`s: doubles stored in closure slots are boxed on every write.
-export const GEO = new Float64Array(50);
+export const GEO = new Float64Array(64);
 export const enum Geo {
   Dx, Dy, Dz, e1x, e1y, e1z, e2x, e2y, e2z, Bx, By, Bz, Nx, Ny, Nz, Ax, Ay, Az, rA, rB,
   // Part of A(s) - cB normal to B's axis, u(s) = U0 + U1 cos s + U2 sin s, and the coefficients of
@@ -31,6 +35,9 @@ export const enum Geo {
   // Arguments and results of the hot helpers. V8 boxes every double passed to or returned from a function it
   // does not inline (isolateMinima, refine and writeRoot are too large to inline): one heap number each.
   L4, noise, hNoise, lo, hi, gLo, gHi, mid, cMid, sMid, gMid, dgMid, ddgMid, root, cRoot, sRoot,
+  // Smallest distance from B's axis of a contact written by writeRoot in this query (an axis contact has all of
+  // B at one distance: see circleContacts).
+  minRho,
 }
 
 /**
@@ -89,13 +96,21 @@ export function writeRoot(out: Float64Array, k: number): void {
   const dx = px - Bx, dy = py - By, dz = pz - Bz;
   const z = dx * Nx + dy * Ny + dz * Nz;
   let qx = dx - z * Nx, qy = dy - z * Ny, qz = dz - z * Nz;
-  const rho = Math.sqrt(qx * qx + qy * qy + qz * qz);
-  if (rho > 0) {
+  // Project out B's normal a second time: next to B's axis the first pass leaves a part along it of eps |z|,
+  // which normalising by a small rho would turn into a foot point off B's plane.
+  const z2 = qx * Nx + qy * Ny + qz * Nz;
+  qx -= z2 * Nx; qy -= z2 * Ny; qz -= z2 * Nz;
+  let rho = Math.sqrt(qx * qx + qy * qy + qz * qz);
+  // On B's axis to rounding (rho at the rounding level of the projection, eps |z|) q has no direction, not even
+  // one in B's plane: every point of B is equally near, take the frame's angle-0 point.
+  if (rho > 8 * 2.220446049250313e-16 * Math.abs(z)) {
     qx /= rho; qy /= rho; qz /= rho;
   } else {
+    rho = 0;
     basisInto(Nx, Ny, Nz, FR);
     qx = FR[0]!; qy = FR[1]!; qz = FR[2]!;
   }
+  if (rho < GEO[Geo.minRho]!) GEO[Geo.minRho] = rho;
   const o = k * CONTACT_STRIDE;
   out[o] = s;
   out[o + 1] = Math.sqrt(z * z + (rho - rB) * (rho - rB));
