@@ -9,7 +9,7 @@ import { flagOf, type SizeOption } from '../src/fabricate/plan.js';
 import { isProcessName, PROCESS_NAMES } from '../src/fabricate/presets.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
-import { writeFileAtomic } from './files.js';
+import { writeFilesAtomic } from './files.js';
 import { emit, type Io } from './io.js';
 
 interface FabricateFlags {
@@ -75,11 +75,9 @@ function run(resultPath: string, flags: FabricateFlags, io: Io): void {
   });
 
   const written: { format: MeshFormat; path: string; bytes: number }[] = [];
-  for (const [format, path] of outputs) {
-    const data = out.files[format]!;
-    writeFileAtomic(path, data);
-    written.push({ format, path, bytes: data.length });
-  }
+  for (const [format, path] of outputs) written.push({ format, path, bytes: out.files[format]!.length });
+  // All meshes or none: a second file that cannot be written must not leave the first one replaced.
+  writeFilesAtomic(outputs.map(([format, path]) => [path, out.files[format]!] as const));
   // Text mode prints warnings in the report; with --json they also go to stderr so a person sees them.
   if (flags.json === true) for (const w of out.warnings) io.err(w);
   emit(io, flags.json === true, toJson(resultPath, out, written), () => toText(resultPath, out, written));

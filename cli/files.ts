@@ -7,13 +7,32 @@ export { readJsonFile } from '../src/model/jsonFile.js';
 
 /** Write the whole file under a temporary name in the same folder, then rename: never half-written. */
 export function writeFileAtomic(path: string, data: string | Uint8Array): void {
-  const tmp = join(dirname(path), `.thickring-tmp-${process.pid}-${basename(path)}`);
+  writeFilesAtomic([[path, data]]);
+}
+
+/**
+ * Write several files all or nothing: every one goes to a temporary name first, and only when all of them
+ * are complete are they renamed into place. A failure before that leaves every existing file untouched.
+ */
+export function writeFilesAtomic(files: readonly (readonly [string, string | Uint8Array])[]): void {
+  const staged: [string, string][] = [];
+  let current = '';
   try {
-    writeFileSync(tmp, data);
-    renameSync(tmp, path);
+    for (const [path, data] of files) {
+      current = path;
+      const tmp = join(dirname(path), `.thickring-tmp-${process.pid}-${basename(path)}`);
+      staged.push([tmp, path]);
+      writeFileSync(tmp, data);
+    }
+    for (const [tmp, path] of staged) {
+      current = path;
+      renameSync(tmp, path);
+    }
   } catch (e) {
-    try { unlinkSync(tmp); } catch { /* nothing was written */ }
+    for (const [tmp] of staged) {
+      try { unlinkSync(tmp); } catch { /* renamed already, or never written */ }
+    }
     const msg = e instanceof Error ? e.message : String(e);
-    throw new InputError(`output file '${path}' cannot be written (${msg}): check the folder exists and is writable`);
+    throw new InputError(`output file '${current}' cannot be written (${msg}): check the folder exists and is writable`);
   }
 }

@@ -5,6 +5,7 @@
 // radius r_i stays embedded iff r_i <= R_i, and tubes i, j are disjoint iff d_ij >= r_i + r_j
 // (thickness in the sense of Gonzalez–Maddocks 1999 and Cantarella–Kusner–Sullivan 2002).
 import { ringDistance, type Contact, type ContinuumKind } from '../kernel/index.js';
+import { displayName } from '../model/displayName.js';
 import { ringPairs } from '../model/ringPairs.js';
 import type { Layout, Vec3 } from '../model/types.js';
 import { connectedness, linkingMatrix, linkingNumber, type LinkingNumber } from '../topology/index.js';
@@ -132,7 +133,7 @@ export function measureLayout(layout: Layout): MeasureResult {
   const names = (ix: number[]): string[] => ix.map((i) => rings[i]!.name);
   describePairs(pairs, rings.length, notes);
   if (conn.unheld.length > 0 && rings.length > 1) {
-    notes.push(`Not held by any link: ${names(conn.unheld).join(', ')} (linked to no other ring).`);
+    notes.push(`Not held by any link: ${names(conn.unheld).map(displayName).join(', ')} (linked to no other ring).`);
   }
   if (layout.symmetry && layout.symmetry.type !== 'none') {
     notes.push(`The layout names ${layout.symmetry.type} symmetry of order ${layout.symmetry.order}; measure takes the rings as given and does not check it.`);
@@ -169,7 +170,7 @@ function tubeRatios(layout: Layout, notes: string[]): { ratios: number[]; fromLa
   if (!differ) return { ratios: layout.rings.map(() => 1), fromLayout: false };
   notes.push('Rings carry different tube values: they are read as ratios (r_i = tube * tube_i / largest tube_i), not as sizes.');
   const missing = layout.rings.filter((r) => r.tube === undefined).map((r) => r.name);
-  if (missing.length > 0) notes.push(`No tube given for ${missing.join(', ')}: taken as ratio 1 (the thickest wire).`);
+  if (missing.length > 0) notes.push(`No tube given for ${missing.map(displayName).join(', ')}: taken as ratio 1 (the thickest wire).`);
   return { ratios: tubes.map((t) => (t === undefined ? 1 : t / maxT)), fromLayout: true };
 }
 
@@ -182,7 +183,7 @@ function describePairs(pairs: MeasurePair[], n: number, notes: string[]): void {
   for (const p of pairs) {
     if (p.continuum) {
       const at = p.shift ? ` (shifted by lattice [${p.shift.join(', ')}])` : '';
-      notes.push(`${p.nameA}-${p.nameB}${at}: closest points form a continuum (${p.continuum.kind}); contacts are evenly spaced representatives.`);
+      notes.push(`${displayName(p.nameA)}-${displayName(p.nameB)}${at}: closest points form a continuum (${p.continuum.kind}); contacts are evenly spaced representatives.`);
     }
   }
   if (n > 1 && pairs.every((p) => p.linking === 0)) {

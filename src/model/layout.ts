@@ -4,9 +4,11 @@ import { ringDistance } from '../kernel/index.js';
 import { InputError } from './errors.js';
 import { MAX_LATTICE_REACH, latticeReach, ringPairs } from './ringPairs.js';
 import type { Lattice, Layout, Ring, Symmetry, SymmetryType, Vec3 } from './types.js';
+import { displayName } from './displayName.js';
+import { MAX_SYMMETRY_ORDER } from './symmetry.js';
 import {
-  fail, isPlainObject, readDirection, readFinite, readName, readObject, readPositive, readVec3,
-  rejectUnknownKeys, show, type Where,
+  MIN_RADIUS_REL, fail, isPlainObject, readDirection, readFinite, readName, readObject, readPositive, readVec3,
+  readPlainText, rejectUnknownKeys, show, type Where,
 } from './validate.js';
 
 export const LAYOUT_FORMAT = 'thickring-layout/1';
@@ -40,11 +42,15 @@ export function parseLayout(data: unknown, source: string): Layout {
     fail(top, `format must be "${LAYOUT_FORMAT}" (${got})`, `add "format": "${LAYOUT_FORMAT}" at the top level`);
   }
   rejectUnknownKeys(data, TOP_KEYS, top);
+  if (data.$schema !== undefined && typeof data.$schema !== 'string') {
+    fail(top, `$schema must be a string such as a schema URL (got ${show(data.$schema)})`, 'write "$schema" as text or leave it out');
+  }
   const layout: Layout = { format: LAYOUT_FORMAT, rings: parseRings(data.rings, source) };
   if (data.units !== undefined) {
     if (typeof data.units !== 'string' || data.units.trim() === '') {
       fail(top, `units must be a non-empty string such as "mm" (got ${show(data.units)})`, 'write "units": "mm" or leave units out');
     }
+    readPlainText(data.units, top, 'units', 'write "units": "mm" or leave units out');
     layout.units = data.units;
   }
   if (data.description !== undefined && typeof data.description !== 'string') {
@@ -52,6 +58,7 @@ export function parseLayout(data: unknown, source: string): Layout {
   }
   if (data.symmetry !== undefined) layout.symmetry = parseSymmetry(data.symmetry, source);
   if (data.lattice !== undefined) layout.lattice = parseLattice(data.lattice, source);
+  checkRadiusScale(layout, source);
   checkLatticeReach(layout, source);
   checkNoIntersections(layout, source);
   return layout;
@@ -68,7 +75,7 @@ export function layoutFromRings(
 
 /** Ring label for messages: its name when it has a usable one, else its position. */
 function ringLabel(raw: unknown, index: number): string {
-  if (isPlainObject(raw) && typeof raw.name === 'string' && raw.name.trim() !== '') return `ring ${raw.name}`;
+  if (isPlainObject(raw) && typeof raw.name === 'string' && raw.name.trim() !== '') return `ring ${displayName(raw.name.length > 40 ? `${raw.name.slice(0, 37)}...` : raw.name)}`;
   return `ring #${index + 1}`;
 }
 
@@ -84,7 +91,7 @@ function parseRings(v: unknown, source: string): Ring[] {
   rings.forEach((r, index) => {
     const first = seen.get(r.name);
     if (first !== undefined) {
-      fail({ owner: `ring ${r.name}`, source }, `name "${r.name}" is used by rings #${first + 1} and #${index + 1}`,
+      fail({ owner: `ring ${displayName(r.name)}`, source }, `name ${show(r.name)} is used by rings #${first + 1} and #${index + 1}`,
         'give every ring a different name');
     }
     seen.set(r.name, index);
@@ -124,6 +131,8 @@ function parseSymmetry(v: unknown, source: string): Symmetry {
   if (obj.order !== undefined || type !== 'none') {
     const o = readFinite(obj.order, at, 'order');
     if (!Number.isInteger(o) || o < 1) fail(at, `order ${show(o)} must be a whole number >= 1`, 'give the number of rotations, e.g. 3');
+    // The group is built element by element: an order of 10^9 would exhaust memory.
+    if (o > MAX_SYMMETRY_ORDER) fail(at, `order ${show(o)} is above ${MAX_SYMMETRY_ORDER}`, `give an order from 1 to ${MAX_SYMMETRY_ORDER}`);
     if (type === 'none' && o !== 1) fail(at, `order ${o} does not go with type "none"`, 'use order 1 or type "cyclic"');
     order = o;
   }
@@ -168,6 +177,19 @@ function checkLatticeReach(layout: Layout, source: string): void {
   });
 }
 
+/** Every core radius must be at least MIN_RADIUS_REL times the largest |centre coordinate| (see validate.ts). */
+function checkRadiusScale(layout: Layout, source: string): void {
+  let far = 0;
+  for (const r of layout.rings) far = Math.max(far, Math.abs(r.center[0]), Math.abs(r.center[1]), Math.abs(r.center[2]));
+  const least = far * MIN_RADIUS_REL;
+  layout.rings.forEach((r, index) => {
+    if (r.radius < least) {
+      fail({ owner: ringLabel(r, index), source }, `radius ${show(r.radius)} is below ${show(MIN_RADIUS_REL)} times the farthest centre coordinate ${show(far)}`,
+        'move the layout nearer the origin (centres are stored to about 16 digits)');
+    }
+  });
+}
+
 function checkNoIntersections(layout: Layout, source: string): void {
   const rings = layout.rings;
   const unit = layout.units ? ` ${layout.units}` : ' layout units';
@@ -181,12 +203,12 @@ function checkNoIntersections(layout: Layout, source: string): void {
     if (gap > tol) continue;
     const d = ringDistance({ center: a.center, normal: a.normal, radius: a.radius }, { center: bCenter, normal: b.normal, radius: b.radius });
     // A kernel that finds no closest pair must not let an intersecting layout through.
-    if (!Number.isFinite(d.distance)) throw new Error(`circle distance failed for rings ${a.name} and ${b.name}`);
+    if (!Number.isFinite(d.distance)) throw new Error(`circle distance failed for rings ${displayName(a.name)} and ${displayName(b.name)}`);
     if (d.distance <= tol) {
-      const other = shifted ? `ring ${b.name} shifted by lattice [${p.shift.join(', ')}]` : `ring ${b.name}`;
+      const other = shifted ? `ring ${displayName(b.name)} shifted by lattice [${p.shift.join(', ')}]` : `ring ${displayName(b.name)}`;
       const where = d.contacts[0] ? ` near [${d.contacts[0].onA.map((x) => round(x)).join(', ')}]` : '';
       throw new InputError(
-        `ring ${a.name} and ${other}: core circles intersect${where} (distance ${round(d.distance)}${unit}, ` +
+        `ring ${displayName(a.name)} and ${other}: core circles intersect${where} (distance ${round(d.distance)}${unit}, ` +
         `must be > ${round(tol)}${unit}) (in ${source}); move or tilt one ring so the circles pass apart`,
       );
     }
