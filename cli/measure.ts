@@ -74,7 +74,8 @@ function vec(v: readonly number[]): string {
 }
 
 function table(head: string[], rows: string[][]): string {
-  const w = head.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k]!.length)));
+  // A loop, not Math.max(...rows): spreading thousands of rows overflows the call stack.
+  const w = head.map((h, k) => rows.reduce((m, r) => Math.max(m, r[k]!.length), h.length));
   const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
   return [line(head), ...rows.map(line)].join('\n');
 }

@@ -2,7 +2,7 @@
 // Every failure is an InputError whose one line names the ring, the field, the value and the fix.
 import { ringDistance } from '../kernel/index.js';
 import { InputError } from './errors.js';
-import { MAX_LATTICE_REACH, latticeReach, ringPairs } from './ringPairs.js';
+import { MAX_LATTICE_REACH, latticeReach, nearRingPairs } from './ringPairs.js';
 import type { Lattice, Layout, Ring, Symmetry, SymmetryType, Vec3 } from './types.js';
 import { displayName } from './displayName.js';
 import { MAX_SYMMETRY_ORDER } from './symmetry.js';
@@ -21,6 +21,17 @@ export const INTERSECT_REL_TOL = 1e-7;
 
 /** Two lattice vectors whose sine of angle is below this are parallel (dimensionless). */
 export const PARALLEL_SIN_TOL = 1e-9;
+
+/**
+ * Most rings a layout file may hold. measure takes ~1.2 s and ~190 MB peak RSS at this size (bench/memory.ts);
+ * the broad phase keeps its work near-linear, but output and parsing grow with the count.
+ */
+export const MAX_LAYOUT_RINGS = 10000;
+/**
+ * Most rings (per cell, for a weave) that inflate and compare take from a layout file, as many as the
+ * largest catalogue link: the solver works on dense strut and KKT matrices, and chain:64 already needs minutes.
+ */
+export const MAX_SOLVE_RINGS = 64;
 
 const TOP_KEYS = ['format', 'units', 'rings', 'symmetry', 'lattice', 'description', '$schema'] as const;
 const RING_KEYS = ['name', 'center', 'normal', 'radius', 'tube'] as const;
@@ -64,6 +75,15 @@ export function parseLayout(data: unknown, source: string): Layout {
   return layout;
 }
 
+/** inflate and compare: refuse layouts above MAX_SOLVE_RINGS rings (measure takes up to MAX_LAYOUT_RINGS). */
+export function checkSolveSize(layout: Layout, source: string): void {
+  const n = layout.rings.length;
+  if (n > MAX_SOLVE_RINGS) {
+    fail({ owner: 'layout', source }, `has ${n} rings; inflate and compare solve at most ${MAX_SOLVE_RINGS}`,
+      `solve a part of at most ${MAX_SOLVE_RINGS} rings (thickring measure takes up to ${MAX_LAYOUT_RINGS})`);
+  }
+}
+
 /** Build and validate a layout from rings made in code (catalogue, tests); throws InputError like parseLayout. */
 export function layoutFromRings(
   rings: readonly Ring[],
@@ -86,6 +106,9 @@ function parseRings(v: unknown, source: string): Ring[] {
       'write "rings": [ { "name": "A", "center": [0,0,0], "normal": [0,0,1], "radius": 1 } ]');
   }
   if (v.length === 0) fail(top, 'rings is empty', 'list at least one ring');
+  if (v.length > MAX_LAYOUT_RINGS) {
+    fail(top, `rings has ${v.length} entries, more than the ${MAX_LAYOUT_RINGS} a layout may hold`, 'split the layout into parts');
+  }
   const rings = v.map((raw, index) => parseRing(raw, index, source));
   const seen = new Map<string, number>();
   rings.forEach((r, index) => {
@@ -193,7 +216,10 @@ function checkRadiusScale(layout: Layout, source: string): void {
 function checkNoIntersections(layout: Layout, source: string): void {
   const rings = layout.rings;
   const unit = layout.units ? ` ${layout.units}` : ' layout units';
-  for (const p of ringPairs(layout)) {
+  let maxR = 0;
+  for (const r of rings) maxR = Math.max(maxR, r.radius);
+  // Only pairs whose bounding spheres come within the largest tolerance can intersect (broad phase).
+  for (const p of nearRingPairs(layout, INTERSECT_REL_TOL * maxR)) {
     const a = rings[p.i]!, b = rings[p.j]!;
     const shifted = p.offset.some((x) => x !== 0) || p.shift.some((s) => s !== 0);
     const bCenter: Vec3 = [b.center[0] + p.offset[0], b.center[1] + p.offset[1], b.center[2] + p.offset[2]];
