@@ -7,6 +7,7 @@ import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
 import { DEFAULT_CHORD, fabricate, type FabricateOutput, type MeshFormat } from '../src/fabricate/fabricate.js';
 import { flagOf, type SizeOption } from '../src/fabricate/plan.js';
 import { isProcessName, PROCESS_NAMES } from '../src/fabricate/presets.js';
+import { MAX_TRIANGLES, MAX_TRIANGLES_HARD, parseMaxTriangles } from '../src/fabricate/torusMesh.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
 import { writeFilesAtomic } from './files.js';
@@ -20,6 +21,7 @@ interface FabricateFlags {
   clearance?: string;
   minWall?: string;
   chord?: string;
+  maxTriangles?: string;
   stl?: string;
   obj?: string;
   '3mf'?: string;
@@ -38,6 +40,7 @@ export function register(program: Command, io: Io): void {
     .option('--clearance <mm>', 'gap between facing ring surfaces (mm; default from the process preset)')
     .option('--min-wall <mm>', 'minimum printable wire diameter (mm; default from the process preset)')
     .option('--chord <mm>', `mesh chord tolerance: largest gap between facet and surface (mm, default ${DEFAULT_CHORD})`)
+    .option('--max-triangles <n>', `largest mesh to build, triangles over all rings (default ${MAX_TRIANGLES}, at most ${MAX_TRIANGLES_HARD})`)
     .option('--stl <file>', 'write a binary STL mesh (mm)')
     .option('--obj <file>', 'write an OBJ mesh, one object per ring (mm)')
     .option('--3mf <file>', 'write a 3MF package, one object per ring (unit millimeter)')
@@ -71,6 +74,7 @@ function run(resultPath: string, flags: FabricateFlags, io: Io): void {
     ...(clearance !== undefined ? { clearance } : {}),
     ...(minWall !== undefined ? { minWall } : {}),
     ...(chord !== undefined ? { chord } : {}),
+    ...(flags.maxTriangles !== undefined ? { maxTriangles: parseMaxTriangles(flags.maxTriangles) } : {}),
     formats: outputs.map(([f]) => f),
   });
 
