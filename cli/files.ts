@@ -1,5 +1,5 @@
 // File boundaries of the CLI: read JSON with clear messages, write atomically (temp name, then rename).
-import { renameSync, writeFileSync, unlinkSync } from 'node:fs';
+import { renameSync, statSync, writeFileSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { InputError } from '../src/model/errors.js';
 
@@ -11,28 +11,46 @@ export function writeFileAtomic(path: string, data: string | Uint8Array): void {
 }
 
 /**
- * Write several files all or nothing: every one goes to a temporary name first, and only when all of them
- * are complete are they renamed into place. A failure before that leaves every existing file untouched.
+ * Write several files all or nothing: every one goes to a temporary name first; then each existing file is
+ * set aside and the new one renamed into place. If any step fails, the new files are removed and the old
+ * ones put back, so a failure leaves every existing file untouched and no new file behind.
  */
 export function writeFilesAtomic(files: readonly (readonly [string, string | Uint8Array])[]): void {
-  const staged: [string, string][] = [];
+  const staged: { tmp: string; path: string; old: string | null; placed: boolean }[] = [];
   let current = '';
   try {
     for (const [path, data] of files) {
       current = path;
       const tmp = join(dirname(path), `.thickring-tmp-${process.pid}-${basename(path)}`);
-      staged.push([tmp, path]);
+      staged.push({ tmp, path, old: null, placed: false });
       writeFileSync(tmp, data);
     }
-    for (const [tmp, path] of staged) {
-      current = path;
-      renameSync(tmp, path);
+    for (const f of staged) {
+      current = f.path;
+      if (isFile(f.path)) {
+        renameSync(f.path, `${f.tmp}.old`);
+        f.old = `${f.tmp}.old`;
+      }
+      renameSync(f.tmp, f.path);
+      f.placed = true;
     }
   } catch (e) {
-    for (const [tmp] of staged) {
-      try { unlinkSync(tmp); } catch { /* renamed already, or never written */ }
+    for (const f of staged.slice().reverse()) {
+      try { if (f.placed) unlinkSync(f.path); else unlinkSync(f.tmp); } catch { /* never written */ }
+      try { if (f.old !== null) renameSync(f.old, f.path); } catch { /* nothing set aside */ }
     }
     const msg = e instanceof Error ? e.message : String(e);
     throw new InputError(`output file '${current}' cannot be written (${msg}): check the folder exists and is writable`);
+  }
+  for (const f of staged) {
+    try { if (f.old !== null) unlinkSync(f.old); } catch { /* already gone */ }
+  }
+}
+
+function isFile(path: string): boolean {
+  try {
+    return statSync(path).isFile();
+  } catch {
+    return false;
   }
 }
