@@ -97,6 +97,14 @@ describe('measure on many rings', () => {
     expect(io.stderr[0]).toMatch(/rings has 10001 entries, more than the 10000 a layout may hold/);
   });
 
+  it(`a weave cell (layout with a lattice) holds at most ${MAX_SOLVE_RINGS} rings: its pair search grows with the square of the cell`, async () => {
+    const p = join(dir, 'bigcell.json');
+    writeFileSync(p, JSON.stringify({ format: 'thickring-layout/1', rings: grid(65), lattice: { vectors: [[100, 0, 0]] } }));
+    const { code, io } = await run(['measure', p]);
+    expect(code).toBe(2);
+    expect(io.stderr.join('\n')).toMatch(/a layout with a lattice has 65 rings in its cell, more than 64/);
+  });
+
   it(`inflate and compare take at most ${MAX_SOLVE_RINGS} rings from a file: exit 2 naming the limit`, async () => {
     const path = file('chain65.json', chain(MAX_SOLVE_RINGS + 1));
     for (const cmd of ['inflate', 'compare']) {

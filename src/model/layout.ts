@@ -69,6 +69,10 @@ export function parseLayout(data: unknown, source: string): Layout {
   }
   if (data.symmetry !== undefined) layout.symmetry = parseSymmetry(data.symmetry, source);
   if (data.lattice !== undefined) layout.lattice = parseLattice(data.lattice, source);
+  // A weave cell meets the copies of every ring in the cells around it: that work grows with the square of the cell.
+  if (layout.lattice && layout.rings.length > MAX_SOLVE_RINGS) {
+    fail(top, `a layout with a lattice has ${layout.rings.length} rings in its cell, more than ${MAX_SOLVE_RINGS}`, 'give one repeating cell of the weave');
+  }
   checkRadiusScale(layout, source);
   checkLatticeReach(layout, source);
   checkNoIntersections(layout, source);

@@ -24,7 +24,7 @@ export interface Family {
 /** Rules the layout schema's description lists as the program's alone (src/model/layout.ts). */
 const LAYOUT_PROGRAM_ONLY = [
   /tube \S+ must be <= radius/, /is used by rings/, /core circles intersect/, /are parallel/,
-  /does not go with type "none"/, /times the farthest centre coordinate/, /overlaps \d+ cells/,
+  /does not go with type "none"/, /times the farthest centre coordinate/, /overlaps \d+ cells/, /is the zero vector/,
 ];
 /** Rules the result schema's description lists as the program's alone (src/model/resultFile.ts). */
 const RESULT_PROGRAM_ONLY = [
