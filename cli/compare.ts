@@ -37,9 +37,11 @@ export function register(program: Command, io: Io): void {
     if (isPeriodicArg(arg)) {
       const run = await runWeaveCompare(arg, options, raw, io);
       const output = raw['output'] as string | undefined;
-      if (output !== undefined) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
-      emit(io, raw['json'] === true, run.result, () => [weaveHeader(run.result), ...run.notes, '', formatCompare(run.result, output)].join('\n'));
-      if (run.result.status === 'failed' || run.result.status === 'infeasible') {
+      // A failed comparison writes nothing: a file already at -o stays as it was.
+      const failed = run.result.status === 'failed' || run.result.status === 'infeasible';
+      if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
+      emit(io, raw['json'] === true, run.result, () => [weaveHeader(run.result), ...run.notes, '', formatCompare(run.result, failed ? undefined : output)].join('\n'));
+      if (failed) {
         throw new Error(`no verified comparison (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
       }
       return;
@@ -49,9 +51,10 @@ export function register(program: Command, io: Io): void {
     }
     const result = await runCompare(arg, options, sweepPoints, io);
     const output = raw['output'] as string | undefined;
-    if (output !== undefined) writeFileAtomic(output, JSON.stringify(result, null, 2) + '\n');
-    emit(io, raw['json'] === true, result, () => formatCompare(result, output));
-    if (result.status === 'failed' || result.status === 'infeasible') {
+    const failed = result.status === 'failed' || result.status === 'infeasible';
+    if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(result, null, 2) + '\n');
+    emit(io, raw['json'] === true, result, () => formatCompare(result, failed ? undefined : output));
+    if (failed) {
       throw new Error(`no verified comparison (status ${result.status}): ${result.verification.messages[0] ?? 'see the result'}`);
     }
   });

@@ -7,9 +7,10 @@ import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
 import { DEFAULT_CHORD, fabricate, type FabricateOutput, type MeshFormat } from '../src/fabricate/fabricate.js';
 import { flagOf, type SizeOption } from '../src/fabricate/plan.js';
 import { isProcessName, PROCESS_NAMES } from '../src/fabricate/presets.js';
+import { MAX_TRIANGLES, MAX_TRIANGLES_HARD, parseMaxTriangles } from '../src/fabricate/torusMesh.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
-import { writeFileAtomic } from './files.js';
+import { writeFilesAtomic } from './files.js';
 import { emit, type Io } from './io.js';
 
 interface FabricateFlags {
@@ -20,6 +21,7 @@ interface FabricateFlags {
   clearance?: string;
   minWall?: string;
   chord?: string;
+  maxTriangles?: string;
   stl?: string;
   obj?: string;
   '3mf'?: string;
@@ -38,6 +40,7 @@ export function register(program: Command, io: Io): void {
     .option('--clearance <mm>', 'gap between facing ring surfaces (mm; default from the process preset)')
     .option('--min-wall <mm>', 'minimum printable wire diameter (mm; default from the process preset)')
     .option('--chord <mm>', `mesh chord tolerance: largest gap between facet and surface (mm, default ${DEFAULT_CHORD})`)
+    .option('--max-triangles <n>', `largest mesh to build, triangles over all rings (default ${MAX_TRIANGLES}, at most ${MAX_TRIANGLES_HARD})`)
     .option('--stl <file>', 'write a binary STL mesh (mm)')
     .option('--obj <file>', 'write an OBJ mesh, one object per ring (mm)')
     .option('--3mf <file>', 'write a 3MF package, one object per ring (unit millimeter)')
@@ -71,15 +74,14 @@ function run(resultPath: string, flags: FabricateFlags, io: Io): void {
     ...(clearance !== undefined ? { clearance } : {}),
     ...(minWall !== undefined ? { minWall } : {}),
     ...(chord !== undefined ? { chord } : {}),
+    ...(flags.maxTriangles !== undefined ? { maxTriangles: parseMaxTriangles(flags.maxTriangles) } : {}),
     formats: outputs.map(([f]) => f),
   });
 
   const written: { format: MeshFormat; path: string; bytes: number }[] = [];
-  for (const [format, path] of outputs) {
-    const data = out.files[format]!;
-    writeFileAtomic(path, data);
-    written.push({ format, path, bytes: data.length });
-  }
+  for (const [format, path] of outputs) written.push({ format, path, bytes: out.files[format]!.length });
+  // All meshes or none: a second file that cannot be written must not leave the first one replaced.
+  writeFilesAtomic(outputs.map(([format, path]) => [path, out.files[format]!] as const));
   // Text mode prints warnings in the report; with --json they also go to stderr so a person sees them.
   if (flags.json === true) for (const w of out.warnings) io.err(w);
   emit(io, flags.json === true, toJson(resultPath, out, written), () => toText(resultPath, out, written));

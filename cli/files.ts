@@ -1,5 +1,5 @@
 // File boundaries of the CLI: read JSON with clear messages, write atomically (temp name, then rename).
-import { renameSync, writeFileSync, unlinkSync } from 'node:fs';
+import { renameSync, statSync, writeFileSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { InputError } from '../src/model/errors.js';
 
@@ -7,13 +7,50 @@ export { readJsonFile } from '../src/model/jsonFile.js';
 
 /** Write the whole file under a temporary name in the same folder, then rename: never half-written. */
 export function writeFileAtomic(path: string, data: string | Uint8Array): void {
-  const tmp = join(dirname(path), `.thickring-tmp-${process.pid}-${basename(path)}`);
+  writeFilesAtomic([[path, data]]);
+}
+
+/**
+ * Write several files all or nothing: every one goes to a temporary name first; then each existing file is
+ * set aside and the new one renamed into place. If any step fails, the new files are removed and the old
+ * ones put back, so a failure leaves every existing file untouched and no new file behind.
+ */
+export function writeFilesAtomic(files: readonly (readonly [string, string | Uint8Array])[]): void {
+  const staged: { tmp: string; path: string; old: string | null; placed: boolean }[] = [];
+  let current = '';
   try {
-    writeFileSync(tmp, data);
-    renameSync(tmp, path);
+    for (const [path, data] of files) {
+      current = path;
+      const tmp = join(dirname(path), `.thickring-tmp-${process.pid}-${basename(path)}`);
+      staged.push({ tmp, path, old: null, placed: false });
+      writeFileSync(tmp, data);
+    }
+    for (const f of staged) {
+      current = f.path;
+      if (isFile(f.path)) {
+        renameSync(f.path, `${f.tmp}.old`);
+        f.old = `${f.tmp}.old`;
+      }
+      renameSync(f.tmp, f.path);
+      f.placed = true;
+    }
   } catch (e) {
-    try { unlinkSync(tmp); } catch { /* nothing was written */ }
+    for (const f of staged.slice().reverse()) {
+      try { if (f.placed) unlinkSync(f.path); else unlinkSync(f.tmp); } catch { /* never written */ }
+      try { if (f.old !== null) renameSync(f.old, f.path); } catch { /* nothing set aside */ }
+    }
     const msg = e instanceof Error ? e.message : String(e);
-    throw new InputError(`output file '${path}' cannot be written (${msg}): check the folder exists and is writable`);
+    throw new InputError(`output file '${current}' cannot be written (${msg}): check the folder exists and is writable`);
+  }
+  for (const f of staged) {
+    try { if (f.old !== null) unlinkSync(f.old); } catch { /* already gone */ }
+  }
+}
+
+function isFile(path: string): boolean {
+  try {
+    return statSync(path).isFile();
+  } catch {
+    return false;
   }
 }

@@ -36,9 +36,11 @@ export function register(program: Command, io: Io): void {
     const json = raw['json'] === true;
     const run = isPeriodicArg(arg) ? await runWeaveInflate(arg, options, raw, io) : await runInflate(arg, options, io, raw);
     const output = raw['output'] as string | undefined;
-    if (output !== undefined) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
-    emit(io, json, run.result, () => formatInflate(run, output));
-    if (run.result.status === 'failed' || run.result.status === 'infeasible') {
+    // A failed solve writes nothing: a file already at -o stays as it was.
+    const failed = run.result.status === 'failed' || run.result.status === 'infeasible';
+    if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
+    emit(io, json, run.result, () => formatInflate(run, failed ? undefined : output));
+    if (failed) {
       throw new Error(`no verified configuration (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
     }
     if (run.result.status === 'stalled') {

@@ -1,4 +1,6 @@
 // Output channel of a command: stdout for the result, stderr for progress and warnings.
+import { safeJson, safeText } from '../src/model/displayName.js';
+
 export interface Io {
   out(text: string): void;
   err(text: string): void;
@@ -14,6 +16,7 @@ export const processIo: Io = {
 
 /** Print a result: exactly one JSON object with --json, else the human text. */
 export function emit(io: Io, json: boolean, result: unknown, text: () => string): void {
-  if (json) io.out(JSON.stringify(result));
-  else io.out(text());
+  // Names and strings from input files reach the output: nothing that drives a terminal goes out raw.
+  if (json) io.out(safeJson(JSON.stringify(result)));
+  else io.out(safeText(text()));
 }

@@ -2,6 +2,7 @@
 // (2 for bad input, 1 for a failed computation).
 import { Command, CommanderError } from 'commander';
 import { isInputError } from '../src/model/errors.js';
+import { safeLine, safeText } from '../src/model/displayName.js';
 import { processIo, type Io } from './io.js';
 import { register as catalog } from './catalog.js';
 import { register as measure } from './measure.js';
@@ -22,7 +23,7 @@ export function buildProgram(io: Io): Command {
     .version('0.1.0')
     .exitOverride()
     .showHelpAfterError('(run with --help for usage)')
-    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(s) });
+    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(safeText(s)) });
   for (const add of COMMANDS) add(program, io);
   return program;
 }
@@ -35,11 +36,11 @@ export async function main(argv: string[], io: Io = processIo): Promise<number> 
   } catch (e) {
     if (e instanceof CommanderError) return e.exitCode === 0 ? 0 : 2;
     if (isInputError(e)) {
-      io.err(`thickring: ${e.message}`);
+      io.err(`thickring: ${safeLine(e.message)}`);
       return 2;
     }
     const msg = e instanceof Error ? e.message : String(e);
-    io.err(`thickring: computation failed: ${msg}`);
+    io.err(`thickring: computation failed: ${safeLine(msg)}`);
     return 1;
   }
 }

@@ -1,6 +1,7 @@
 // `thickring measure LAYOUT [--json]`: the tube a layout allows as it stands, pair by pair.
 import type { Command } from 'commander';
 import { measureLayout, type MeasureResult } from '../src/analyze/measure.js';
+import { displayName as dn } from '../src/model/displayName.js';
 import { emit, type Io } from './io.js';
 import { loadLayoutFile } from './layoutFile.js';
 
@@ -24,8 +25,8 @@ export function formatMeasure(m: MeasureResult, file: string): string {
   lines.push(`Layout ${file}: ${m.rings.length} ring${m.rings.length === 1 ? '' : 's'}, lengths in ${u}`);
   lines.push(`Largest common tube radius: ${L(m.tube)} (wire diameter ${L(2 * m.tube)}; tube / smallest core radius ${num(m.tubeOverCore)}, dimensionless)`);
   const lim = [
-    ...m.limitedBy.rings.map((n) => `ring ${n} (tube = core radius)`),
-    ...m.limitedBy.pairs.map((p) => `pair ${p.a}-${p.b}${p.shift ? ` shifted [${p.shift.join(', ')}]` : ''} (tubes touch)`),
+    ...m.limitedBy.rings.map((n) => `ring ${dn(n)} (tube = core radius)`),
+    ...m.limitedBy.pairs.map((p) => `pair ${dn(p.a)}-${dn(p.b)}${p.shift ? ` shifted [${p.shift.join(', ')}]` : ''} (tubes touch)`),
   ];
   lines.push(`Limited by: ${lim.join('; ')}`);
   lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(m.aspectRatio)} (dimensionless)`);
@@ -37,7 +38,7 @@ export function formatMeasure(m: MeasureResult, file: string): string {
   lines.push(table(
     ['name', `centre (${u})`, 'normal (unit)', `core R (${u})`, `tube r (${u})`, 'ratio (dimensionless)', `ring allows tube (${u})`, 'aspect ratio (dimensionless)'],
     m.rings.map((r) => [
-      r.name, vec(r.center), vec(r.normal), num(r.radius), num(r.tube), num(r.tubeRatio), num(r.tubeLimit), num(r.aspectRatio),
+      dn(r.name), vec(r.center), vec(r.normal), num(r.radius), num(r.tube), num(r.tubeRatio), num(r.tubeLimit), num(r.aspectRatio),
     ]),
   ));
   if (m.pairs.length > 0) {
@@ -46,7 +47,7 @@ export function formatMeasure(m: MeasureResult, file: string): string {
     lines.push(table(
       ['pair', `core distance (${u})`, 'contacts', 'linking', `allows tube (${u})`, 'note'],
       m.pairs.map((p) => [
-        `${p.nameA}-${p.nameB}${p.shift ? ` [${p.shift.join(',')}]` : ''}`,
+        `${dn(p.nameA)}-${dn(p.nameB)}${p.shift ? ` [${p.shift.join(',')}]` : ''}`,
         num(p.distance),
         String(p.contacts.length),
         p.linking > 0 ? '+1' : String(p.linking),
@@ -56,7 +57,7 @@ export function formatMeasure(m: MeasureResult, file: string): string {
     ));
   }
   lines.push('');
-  lines.push(`Linked pieces: ${m.components.length} (${m.components.map((c) => c.join(' ')).join(' | ')})`);
+  lines.push(`Linked pieces: ${m.components.length} (${m.components.map((c) => c.map(dn).join(' ')).join(' | ')})`);
   for (const n of m.notes) lines.push(`Note: ${n}`);
   for (const c of m.cautions) lines.push(`Caution: ${c}`);
   return lines.join('\n');
@@ -73,7 +74,8 @@ function vec(v: readonly number[]): string {
 }
 
 function table(head: string[], rows: string[][]): string {
-  const w = head.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k]!.length)));
+  // A loop, not Math.max(...rows): spreading thousands of rows overflows the call stack.
+  const w = head.map((h, k) => rows.reduce((m, r) => Math.max(m, r[k]!.length), h.length));
   const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
   return [line(head), ...rows.map(line)].join('\n');
 }

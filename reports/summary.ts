@@ -1,4 +1,5 @@
 // Plain-text terminal summary of a result (inflate or compare), same figures as the HTML report.
+import { displayName } from '../src/model/displayName.js';
 import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, signed, withUnit } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
@@ -53,7 +54,7 @@ function compareSummary(c: CompareResult): string {
   if (c.changes.length > 0) {
     lines.push('', 'per-ring change, broken vs symmetric optimum (after best rigid alignment):');
     lines.push(table(c.changes.map((ch) => [
-      `  ring ${ch.name}`, `moved ${withUnit(ch.displacement, unit, 4)}`, `tilted ${withUnit(ch.tiltDegrees, 'degrees', 3)}`,
+      `  ring ${displayName(ch.name)}`, `moved ${withUnit(ch.displacement, unit, 4)}`, `tilted ${withUnit(ch.tiltDegrees, 'degrees', 3)}`,
     ])));
   }
   if (c.sweep.length > 0) {
@@ -68,7 +69,7 @@ function ringLines(r: SolveResult): string[] {
   const unit = lengthUnit(r);
   const out = ['', `rings (${unit}; aspect ratio dimensionless):`];
   out.push(table(r.rings.map((g) => [
-    `  ${g.name}`, `R ${num(g.radius)}`, `r ${num(g.tube)}`, `AR ${num(g.aspectRatio, 4)}`,
+    `  ${displayName(g.name)}`, `R ${num(g.radius)}`, `r ${num(g.tube)}`, `AR ${num(g.aspectRatio, 4)}`,
   ])));
   return out;
 }

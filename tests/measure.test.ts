@@ -118,7 +118,7 @@ describe('measureLayout against closed forms', () => {
       expect(m2.aspectRatio).toBeCloseTo(m.aspectRatio, 6);
       const lk = (mm: typeof m, a: string, b: string): number => {
         const i = mm.rings.findIndex((r) => r.name === a), j = mm.rings.findIndex((r) => r.name === b);
-        return mm.linking[i]![j]!;
+        return mm.linking![i]![j]!;
       };
       // A proper rotation keeps every linking number.
       for (const [a, b] of [['A', 'B'], ['A', 'C'], ['B', 'C']] as const) expect(lk(m2, a, b)).toBe(lk(m, a, b));

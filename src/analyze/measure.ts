@@ -5,9 +5,18 @@
 // radius r_i stays embedded iff r_i <= R_i, and tubes i, j are disjoint iff d_ij >= r_i + r_j
 // (thickness in the sense of Gonzalez–Maddocks 1999 and Cantarella–Kusner–Sullivan 2002).
 import { ringDistance, type Contact, type ContinuumKind } from '../kernel/index.js';
-import { ringPairs } from '../model/ringPairs.js';
+import { displayName } from '../model/displayName.js';
+import { nearRingPairs, ringPairs } from '../model/ringPairs.js';
 import type { Layout, Vec3 } from '../model/types.js';
-import { connectedness, linkingMatrix, linkingNumber, type LinkingNumber } from '../topology/index.js';
+import { connectednessOf, linkingNumber, type LinkingNumber } from '../topology/index.js';
+
+/**
+ * Up to this many rings every pair is listed (and the full linking matrix given); above it only the pairs
+ * whose bounding spheres come within 2 max R (the only ones that can set the tube or be linked).
+ */
+export const MEASURE_ALL_PAIRS_MAX = 64;
+/** Up to this many rings `linking` is the full N x N matrix; above it null, and `links` lists the linked pairs. */
+export const MEASURE_DENSE_LINKING_MAX = 256;
 
 /** Limits within this fraction of the tube radius count as ties (kernel distances carry ~1e-8 relative noise). */
 export const LIMIT_REL_TOL = 1e-7;
@@ -69,8 +78,13 @@ export interface MeasureResult {
   rings: MeasureRing[];
   pairs: MeasurePair[];
   limitedBy: MeasureLimit;
-  /** Pairwise linking numbers of the rings in the layout (cell), diagonal 0. */
-  linking: number[][];
+  /**
+   * Pairwise linking numbers of the rings in the layout (cell), diagonal 0; null above
+   * MEASURE_DENSE_LINKING_MAX rings (see `links`).
+   */
+  linking: number[][] | null;
+  /** The linked pairs of the cell (a < b, ring indices): the sparse form of `linking`. */
+  links: { a: number; b: number; linking: LinkingNumber }[];
   /** Groups of ring names held together by linking (lattice links included). */
   components: string[][];
   /** Rings linked to no other ring. */
@@ -90,13 +104,19 @@ export function measureLayout(layout: Layout): MeasureResult {
   const rings = layout.rings;
   const notes: string[] = [];
   const { ratios, fromLayout } = tubeRatios(layout, notes);
-  const maxR = Math.max(...rings.map((r) => r.radius));
+  let maxR = 0, minR = Infinity;
+  for (const r of rings) {
+    maxR = Math.max(maxR, r.radius);
+    minR = Math.min(minR, r.radius);
+  }
 
   // Every tube limit in one list; the smallest is the common tube.
   const ringLimits = rings.map((r, i) => r.radius / ratios[i]!);
   const pairs: MeasurePair[] = [];
-  // Copies whose bounding spheres are more than 2 max R apart cannot limit t (r_i + r_j <= R_i + R_j).
-  for (const p of ringPairs(layout, 2 * maxR)) {
+  // Copies whose bounding spheres are more than 2 max R apart cannot limit t (r_i + r_j <= R_i + R_j), nor
+  // link (a linked circle meets the other's disk, inside its sphere): many rings need only the near pairs.
+  const allPairs = rings.length <= MEASURE_ALL_PAIRS_MAX;
+  for (const p of allPairs ? ringPairs(layout, 2 * maxR) : nearRingPairs(layout, 2 * maxR)) {
     const a = rings[p.i]!, b = rings[p.j]!;
     const shifted = p.shift.some((s) => s !== 0);
     const bc: Vec3 = [b.center[0] + p.offset[0], b.center[1] + p.offset[1], b.center[2] + p.offset[2]];
@@ -111,7 +131,10 @@ export function measureLayout(layout: Layout): MeasureResult {
     if (shifted) pair.shift = p.shift;
     pairs.push(pair);
   }
-  const tube = Math.min(...ringLimits, ...pairs.map((p) => p.tubeLimit));
+  // Loops, not Math.min(...list): spreading a list of thousands of pairs overflows the call stack.
+  let tube = Infinity;
+  for (const t of ringLimits) tube = Math.min(tube, t);
+  for (const p of pairs) tube = Math.min(tube, p.tubeLimit);
 
   const tieAt = tube * (1 + LIMIT_REL_TOL);
   const limitedBy: MeasureLimit = {
@@ -126,13 +149,22 @@ export function measureLayout(layout: Layout): MeasureResult {
     };
   });
 
-  const linking = linkingMatrix(rings);
-  const latticeLinks = pairs.filter((p) => p.shift && p.linking !== 0).map((p): [number, number] => [p.a, p.b]);
-  const conn = connectedness(linking, latticeLinks);
+  // Linked pairs are among the listed ones (bounding spheres meet); every other pair has linking number 0.
+  const links = pairs.filter((p) => !p.shift && p.linking !== 0).map((p) => ({ a: p.a, b: p.b, linking: p.linking }));
+  const dense = rings.length <= MEASURE_DENSE_LINKING_MAX;
+  const linking = dense ? rings.map(() => new Array<number>(rings.length).fill(0)) : null;
+  if (linking) for (const l of links) linking[l.a]![l.b] = linking[l.b]![l.a] = l.linking;
+  const linkEdges = pairs.filter((p) => p.linking !== 0).map((p): [number, number] => [p.a, p.b]);
+  const conn = connectednessOf(rings.length, linkEdges);
   const names = (ix: number[]): string[] => ix.map((i) => rings[i]!.name);
   describePairs(pairs, rings.length, notes);
+  if (!allPairs) {
+    notes.push(`With ${rings.length} rings (more than ${MEASURE_ALL_PAIRS_MAX}), pairs lists only the pairs whose bounding spheres come within ` +
+      `${fmtLen(2 * maxR)} (twice the largest core radius); every other pair is farther apart than any tube allowed here and unlinked.`);
+  }
+  if (!dense) notes.push(`With more than ${MEASURE_DENSE_LINKING_MAX} rings, linking is null: links lists the linked pairs (all others are 0).`);
   if (conn.unheld.length > 0 && rings.length > 1) {
-    notes.push(`Not held by any link: ${names(conn.unheld).join(', ')} (linked to no other ring).`);
+    notes.push(`Not held by any link: ${names(conn.unheld).map(displayName).join(', ')} (linked to no other ring).`);
   }
   if (layout.symmetry && layout.symmetry.type !== 'none') {
     notes.push(`The layout names ${layout.symmetry.type} symmetry of order ${layout.symmetry.order}; measure takes the rings as given and does not check it.`);
@@ -144,8 +176,8 @@ export function measureLayout(layout: Layout): MeasureResult {
     status: 'ok',
     units: layout.units ?? null,
     tube,
-    tubeOverCore: tube / Math.min(...rings.map((r) => r.radius)),
-    aspectRatio: Math.max(...measured.map((r) => r.aspectRatio)),
+    tubeOverCore: tube / minR,
+    aspectRatio: measured.reduce((m, r) => Math.max(m, r.aspectRatio), -Infinity),
     tubeRatios: ratios,
     ratiosFromLayout: fromLayout,
     given,
@@ -153,6 +185,7 @@ export function measureLayout(layout: Layout): MeasureResult {
     pairs,
     limitedBy,
     linking,
+    links,
     components: conn.components.map(names),
     unheld: rings.length > 1 ? names(conn.unheld) : [],
     notes,
@@ -164,17 +197,21 @@ export function measureLayout(layout: Layout): MeasureResult {
 function tubeRatios(layout: Layout, notes: string[]): { ratios: number[]; fromLayout: boolean } {
   const tubes = layout.rings.map((r) => r.tube);
   const given = tubes.filter((t): t is number => t !== undefined);
-  const maxT = given.length > 0 ? Math.max(...given) : 0;
+  const maxT = given.reduce((m, t) => Math.max(m, t), 0);
   const differ = given.some((t) => t !== maxT);
   if (!differ) return { ratios: layout.rings.map(() => 1), fromLayout: false };
   notes.push('Rings carry different tube values: they are read as ratios (r_i = tube * tube_i / largest tube_i), not as sizes.');
   const missing = layout.rings.filter((r) => r.tube === undefined).map((r) => r.name);
-  if (missing.length > 0) notes.push(`No tube given for ${missing.join(', ')}: taken as ratio 1 (the thickest wire).`);
+  if (missing.length > 0) notes.push(`No tube given for ${missing.map(displayName).join(', ')}: taken as ratio 1 (the thickest wire).`);
   return { ratios: tubes.map((t) => (t === undefined ? 1 : t / maxT)), fromLayout: true };
 }
 
+function fmtLen(x: number): string {
+  return String(Number(x.toPrecision(6)));
+}
+
 function givenTube(layout: Layout, tube: number): { tube: number; fits: boolean } {
-  const largest = Math.max(...layout.rings.map((r) => r.tube ?? 0));
+  const largest = layout.rings.reduce((m, r) => Math.max(m, r.tube ?? 0), 0);
   return { tube: largest, fits: largest <= tube };
 }
 
@@ -182,7 +219,7 @@ function describePairs(pairs: MeasurePair[], n: number, notes: string[]): void {
   for (const p of pairs) {
     if (p.continuum) {
       const at = p.shift ? ` (shifted by lattice [${p.shift.join(', ')}])` : '';
-      notes.push(`${p.nameA}-${p.nameB}${at}: closest points form a continuum (${p.continuum.kind}); contacts are evenly spaced representatives.`);
+      notes.push(`${displayName(p.nameA)}-${displayName(p.nameB)}${at}: closest points form a continuum (${p.continuum.kind}); contacts are evenly spaced representatives.`);
     }
   }
   if (n > 1 && pairs.every((p) => p.linking === 0)) {

@@ -17,6 +17,8 @@ export interface FabricateOptions extends PlanOptions {
   chord?: number;
   /** Formats to encode; meshes are built and checked only when this is non-empty. */
   formats?: readonly MeshFormat[];
+  /** Largest mesh built (triangles over all bodies), default MAX_TRIANGLES; checked before anything is built. */
+  maxTriangles?: number;
 }
 
 export interface MeshSummary {
@@ -45,7 +47,7 @@ export function fabricate(result: SolveResult, options: FabricateOptions): Fabri
   const formats = options.formats ?? [];
   const tori: Torus[] = plan.rings.map((r) => ({ name: r.name, center: r.center, normal: r.normal, radius: r.radius, tube: r.printedTube }));
   // Validate the chord even without meshes, so a bad flag is reported the same way every time.
-  checkMeshBudget(formats.length ? tori : [], chord);
+  checkMeshBudget(formats.length ? tori : [], chord, options.maxTriangles);
   const warnings = [...plan.warnings];
   if (plan.clearance > 0 && chord > plan.clearance / 2) {
     warnings.push(

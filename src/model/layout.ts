@@ -2,11 +2,13 @@
 // Every failure is an InputError whose one line names the ring, the field, the value and the fix.
 import { ringDistance } from '../kernel/index.js';
 import { InputError } from './errors.js';
-import { MAX_LATTICE_REACH, latticeReach, ringPairs } from './ringPairs.js';
+import { MAX_LATTICE_REACH, latticeReach, nearRingPairs } from './ringPairs.js';
 import type { Lattice, Layout, Ring, Symmetry, SymmetryType, Vec3 } from './types.js';
+import { displayName } from './displayName.js';
+import { MAX_SYMMETRY_ORDER } from './symmetry.js';
 import {
-  fail, isPlainObject, readDirection, readFinite, readName, readObject, readPositive, readVec3,
-  rejectUnknownKeys, show, type Where,
+  MIN_RADIUS_REL, fail, isPlainObject, readDirection, readFinite, readName, readObject, readPositive, readVec3,
+  readPlainText, rejectUnknownKeys, show, type Where,
 } from './validate.js';
 
 export const LAYOUT_FORMAT = 'thickring-layout/1';
@@ -19,6 +21,17 @@ export const INTERSECT_REL_TOL = 1e-7;
 
 /** Two lattice vectors whose sine of angle is below this are parallel (dimensionless). */
 export const PARALLEL_SIN_TOL = 1e-9;
+
+/**
+ * Most rings a layout file may hold. measure takes ~1.2 s and ~190 MB peak RSS at this size (bench/memory.ts);
+ * the broad phase keeps its work near-linear, but output and parsing grow with the count.
+ */
+export const MAX_LAYOUT_RINGS = 10000;
+/**
+ * Most rings (per cell, for a weave) that inflate and compare take from a layout file, as many as the
+ * largest catalogue link: the solver works on dense strut and KKT matrices, and chain:64 already needs minutes.
+ */
+export const MAX_SOLVE_RINGS = 64;
 
 const TOP_KEYS = ['format', 'units', 'rings', 'symmetry', 'lattice', 'description', '$schema'] as const;
 const RING_KEYS = ['name', 'center', 'normal', 'radius', 'tube'] as const;
@@ -40,11 +53,15 @@ export function parseLayout(data: unknown, source: string): Layout {
     fail(top, `format must be "${LAYOUT_FORMAT}" (${got})`, `add "format": "${LAYOUT_FORMAT}" at the top level`);
   }
   rejectUnknownKeys(data, TOP_KEYS, top);
+  if (data.$schema !== undefined && typeof data.$schema !== 'string') {
+    fail(top, `$schema must be a string such as a schema URL (got ${show(data.$schema)})`, 'write "$schema" as text or leave it out');
+  }
   const layout: Layout = { format: LAYOUT_FORMAT, rings: parseRings(data.rings, source) };
   if (data.units !== undefined) {
     if (typeof data.units !== 'string' || data.units.trim() === '') {
       fail(top, `units must be a non-empty string such as "mm" (got ${show(data.units)})`, 'write "units": "mm" or leave units out');
     }
+    readPlainText(data.units, top, 'units', 'write "units": "mm" or leave units out');
     layout.units = data.units;
   }
   if (data.description !== undefined && typeof data.description !== 'string') {
@@ -52,9 +69,23 @@ export function parseLayout(data: unknown, source: string): Layout {
   }
   if (data.symmetry !== undefined) layout.symmetry = parseSymmetry(data.symmetry, source);
   if (data.lattice !== undefined) layout.lattice = parseLattice(data.lattice, source);
+  // A weave cell meets the copies of every ring in the cells around it: that work grows with the square of the cell.
+  if (layout.lattice && layout.rings.length > MAX_SOLVE_RINGS) {
+    fail(top, `a layout with a lattice has ${layout.rings.length} rings in its cell, more than ${MAX_SOLVE_RINGS}`, 'give one repeating cell of the weave');
+  }
+  checkRadiusScale(layout, source);
   checkLatticeReach(layout, source);
   checkNoIntersections(layout, source);
   return layout;
+}
+
+/** inflate and compare: refuse layouts above MAX_SOLVE_RINGS rings (measure takes up to MAX_LAYOUT_RINGS). */
+export function checkSolveSize(layout: Layout, source: string): void {
+  const n = layout.rings.length;
+  if (n > MAX_SOLVE_RINGS) {
+    fail({ owner: 'layout', source }, `has ${n} rings; inflate and compare solve at most ${MAX_SOLVE_RINGS}`,
+      `solve a part of at most ${MAX_SOLVE_RINGS} rings (thickring measure takes up to ${MAX_LAYOUT_RINGS})`);
+  }
 }
 
 /** Build and validate a layout from rings made in code (catalogue, tests); throws InputError like parseLayout. */
@@ -68,7 +99,7 @@ export function layoutFromRings(
 
 /** Ring label for messages: its name when it has a usable one, else its position. */
 function ringLabel(raw: unknown, index: number): string {
-  if (isPlainObject(raw) && typeof raw.name === 'string' && raw.name.trim() !== '') return `ring ${raw.name}`;
+  if (isPlainObject(raw) && typeof raw.name === 'string' && raw.name.trim() !== '') return `ring ${displayName(raw.name.length > 40 ? `${raw.name.slice(0, 37)}...` : raw.name)}`;
   return `ring #${index + 1}`;
 }
 
@@ -79,12 +110,15 @@ function parseRings(v: unknown, source: string): Ring[] {
       'write "rings": [ { "name": "A", "center": [0,0,0], "normal": [0,0,1], "radius": 1 } ]');
   }
   if (v.length === 0) fail(top, 'rings is empty', 'list at least one ring');
+  if (v.length > MAX_LAYOUT_RINGS) {
+    fail(top, `rings has ${v.length} entries, more than the ${MAX_LAYOUT_RINGS} a layout may hold`, 'split the layout into parts');
+  }
   const rings = v.map((raw, index) => parseRing(raw, index, source));
   const seen = new Map<string, number>();
   rings.forEach((r, index) => {
     const first = seen.get(r.name);
     if (first !== undefined) {
-      fail({ owner: `ring ${r.name}`, source }, `name "${r.name}" is used by rings #${first + 1} and #${index + 1}`,
+      fail({ owner: `ring ${displayName(r.name)}`, source }, `name ${show(r.name)} is used by rings #${first + 1} and #${index + 1}`,
         'give every ring a different name');
     }
     seen.set(r.name, index);
@@ -124,6 +158,8 @@ function parseSymmetry(v: unknown, source: string): Symmetry {
   if (obj.order !== undefined || type !== 'none') {
     const o = readFinite(obj.order, at, 'order');
     if (!Number.isInteger(o) || o < 1) fail(at, `order ${show(o)} must be a whole number >= 1`, 'give the number of rotations, e.g. 3');
+    // The group is built element by element: an order of 10^9 would exhaust memory.
+    if (o > MAX_SYMMETRY_ORDER) fail(at, `order ${show(o)} is above ${MAX_SYMMETRY_ORDER}`, `give an order from 1 to ${MAX_SYMMETRY_ORDER}`);
     if (type === 'none' && o !== 1) fail(at, `order ${o} does not go with type "none"`, 'use order 1 or type "cyclic"');
     order = o;
   }
@@ -168,10 +204,26 @@ function checkLatticeReach(layout: Layout, source: string): void {
   });
 }
 
+/** Every core radius must be at least MIN_RADIUS_REL times the largest |centre coordinate| (see validate.ts). */
+function checkRadiusScale(layout: Layout, source: string): void {
+  let far = 0;
+  for (const r of layout.rings) far = Math.max(far, Math.abs(r.center[0]), Math.abs(r.center[1]), Math.abs(r.center[2]));
+  const least = far * MIN_RADIUS_REL;
+  layout.rings.forEach((r, index) => {
+    if (r.radius < least) {
+      fail({ owner: ringLabel(r, index), source }, `radius ${show(r.radius)} is below ${show(MIN_RADIUS_REL)} times the farthest centre coordinate ${show(far)}`,
+        'move the layout nearer the origin (centres are stored to about 16 digits)');
+    }
+  });
+}
+
 function checkNoIntersections(layout: Layout, source: string): void {
   const rings = layout.rings;
   const unit = layout.units ? ` ${layout.units}` : ' layout units';
-  for (const p of ringPairs(layout)) {
+  let maxR = 0;
+  for (const r of rings) maxR = Math.max(maxR, r.radius);
+  // Only pairs whose bounding spheres come within the largest tolerance can intersect (broad phase).
+  for (const p of nearRingPairs(layout, INTERSECT_REL_TOL * maxR)) {
     const a = rings[p.i]!, b = rings[p.j]!;
     const shifted = p.offset.some((x) => x !== 0) || p.shift.some((s) => s !== 0);
     const bCenter: Vec3 = [b.center[0] + p.offset[0], b.center[1] + p.offset[1], b.center[2] + p.offset[2]];
@@ -181,12 +233,12 @@ function checkNoIntersections(layout: Layout, source: string): void {
     if (gap > tol) continue;
     const d = ringDistance({ center: a.center, normal: a.normal, radius: a.radius }, { center: bCenter, normal: b.normal, radius: b.radius });
     // A kernel that finds no closest pair must not let an intersecting layout through.
-    if (!Number.isFinite(d.distance)) throw new Error(`circle distance failed for rings ${a.name} and ${b.name}`);
+    if (!Number.isFinite(d.distance)) throw new Error(`circle distance failed for rings ${displayName(a.name)} and ${displayName(b.name)}`);
     if (d.distance <= tol) {
-      const other = shifted ? `ring ${b.name} shifted by lattice [${p.shift.join(', ')}]` : `ring ${b.name}`;
+      const other = shifted ? `ring ${displayName(b.name)} shifted by lattice [${p.shift.join(', ')}]` : `ring ${displayName(b.name)}`;
       const where = d.contacts[0] ? ` near [${d.contacts[0].onA.map((x) => round(x)).join(', ')}]` : '';
       throw new InputError(
-        `ring ${a.name} and ${other}: core circles intersect${where} (distance ${round(d.distance)}${unit}, ` +
+        `ring ${displayName(a.name)} and ${other}: core circles intersect${where} (distance ${round(d.distance)}${unit}, ` +
         `must be > ${round(tol)}${unit}) (in ${source}); move or tilt one ring so the circles pass apart`,
       );
     }

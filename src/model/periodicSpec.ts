@@ -5,7 +5,7 @@
 import { readFileSync, statSync } from 'node:fs';
 import { basename } from 'node:path';
 import { InputError } from './errors.js';
-import { layoutFromRings, parseLayout } from './layout.js';
+import { checkSolveSize, layoutFromRings, parseLayout } from './layout.js';
 import { periodicKind, periodicLinks, sameLinks, type PeriodicKind, type PeriodicLink } from './periodic.js';
 import type { Lattice, Layout, Ring } from './types.js';
 import { looksLikeWeaveSpec, parseWeaveSpec, weaveLayout, type WeaveEntry } from './weaves.js';
@@ -76,6 +76,7 @@ function readPeriodicLayout(path: string): PeriodicLayout {
     throw new InputError(`layout file '${path}' cannot be read as JSON (${msg}): check the path and fix the syntax`);
   }
   const layout = parseLayout(data, basename(path));
+  checkSolveSize(layout, basename(path));
   if (!layout.lattice) throw new InputError(`layout file '${path}' has no lattice section: add "lattice": { "vectors": [[dx,dy,dz]] } for a weave`);
   return layout as PeriodicLayout;
 }

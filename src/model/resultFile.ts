@@ -1,8 +1,13 @@
 // Reading result files (format thickring-result/1) at a boundary: every field the downstream
 // commands (report, fabricate, tracks, play) use is checked here, with a message that names the
 // file, the field, what was expected and the fix.
+import { Ajv2020 } from 'ajv/dist/2020.js';
+import type { ValidateFunction } from 'ajv';
+import resultSchema from '../../schemas/result.schema.json' with { type: 'json' };
+import { displayName, firstUnsafeChar, safeLine } from './displayName.js';
 import { readJsonFile } from './jsonFile.js';
 import { InputError } from './errors.js';
+import { MAX_MAGNITUDE, MAX_MAGNITUDE_TEXT, MIN_LENGTH, MIN_RADIUS_REL, show as showValue } from './validate.js';
 import { RESULT_FORMAT, type ResultContact, type ResultRing, type SolveResult } from './result.js';
 import type { SolveStatus, Vec3 } from './types.js';
 
@@ -41,6 +46,7 @@ export function parseResult(data: unknown, source: string): SolveResult {
   const rings = checkRings(data['rings'], where);
   const contacts = checkContacts(data['contacts'], rings.length, where);
   if (data['linking'] !== undefined) checkLinking(data['linking'], rings.length, where);
+  checkSchema(data, where);
   return { ...(data as unknown as SolveResult), units: (units ?? null) as string | null, rings, contacts };
 }
 
@@ -72,7 +78,9 @@ function checkRings(value: unknown, where: string): ResultRing[] {
     if (typeof name !== 'string' || name.length === 0) {
       throw new InputError(`${label}: name ${show(name)} must be a non-empty string`);
     }
-    const ringLabel = `${where}: ring ${name}`;
+    const bad = firstUnsafeChar(name);
+    if (bad !== null) throw new InputError(`${label}: name ${show(name)} holds the control character ${bad}: rename the ring`);
+    const ringLabel = `${where}: ring ${displayName(name)}`;
     const center = vec3(raw['center'], `${ringLabel}: center`);
     const normal = vec3(raw['normal'], `${ringLabel}: normal`);
     const len = Math.hypot(normal[0], normal[1], normal[2]);
@@ -81,8 +89,16 @@ function checkRings(value: unknown, where: string): ResultRing[] {
     }
     const radius = finite(raw['radius'], `${ringLabel}: radius`);
     if (!(radius > 0)) throw new InputError(`${ringLabel}: radius ${radius} must be > 0`);
+    if (radius < MIN_LENGTH || radius > MAX_MAGNITUDE) {
+      throw new InputError(`${ringLabel}: radius ${radius} is outside the range ${MIN_LENGTH} to ${MAX_MAGNITUDE_TEXT} layout units: re-run the solve from a layout in range`);
+    }
+    const far = Math.max(Math.abs(center[0]), Math.abs(center[1]), Math.abs(center[2]));
+    if (radius < MIN_RADIUS_REL * far) {
+      throw new InputError(`${ringLabel}: radius ${radius} is below ${MIN_RADIUS_REL} times its centre coordinate ${far}: move the layout nearer the origin`);
+    }
     const tube = finite(raw['tube'], `${ringLabel}: tube`);
     if (tube < 0) throw new InputError(`${ringLabel}: tube ${tube} must be >= 0`);
+    if (tube > MAX_MAGNITUDE) throw new InputError(`${ringLabel}: tube ${tube} is above ${MAX_MAGNITUDE_TEXT} layout units: re-run the solve`);
     const ar = raw['aspectRatio'];
     const aspectRatio = typeof ar === 'number' && Number.isFinite(ar) ? ar : tube > 0 ? (radius - tube) / tube : Infinity;
     return { ...(raw as object), name, center, normal: [normal[0] / len, normal[1] / len, normal[2] / len], radius, tube, aspectRatio };
@@ -127,6 +143,9 @@ function vec3(value: unknown, label: string): Vec3 {
   if (!Array.isArray(value) || value.length !== 3 || !value.every((x) => typeof x === 'number' && Number.isFinite(x))) {
     throw new InputError(`${label} ${show(value)} must be an array of 3 finite numbers`);
   }
+  if (!value.every((x) => Math.abs(x as number) <= MAX_MAGNITUDE)) {
+    throw new InputError(`${label} ${show(value)} has an entry beyond ±${MAX_MAGNITUDE_TEXT} layout units: re-run the solve from a layout in range`);
+  }
   return [value[0] as number, value[1] as number, value[2] as number];
 }
 
@@ -140,6 +159,20 @@ function isObject(v: unknown): v is Record<string, unknown> {
 }
 
 function show(v: unknown): string {
-  const s = JSON.stringify(v);
-  return s === undefined ? 'missing' : s.length > 40 ? s.slice(0, 37) + '...' : s;
+  return v === undefined ? 'missing' : showValue(v);
+}
+
+let schemaCheck: ValidateFunction | null = null;
+
+/**
+ * Everything else the published schema (schemas/result.schema.json) states, so that reader and schema agree:
+ * the first violation becomes one line naming the field.
+ */
+function checkSchema(data: unknown, where: string): void {
+  schemaCheck ??= new Ajv2020({ allErrors: false, strict: false }).compile(resultSchema);
+  if (schemaCheck(data)) return;
+  const e = schemaCheck.errors?.[0];
+  const field = e ? e.instancePath.replace(/^\//, '').replace(/\//g, '.') || 'the top level' : 'the file';
+  const detail = e ? `${e.message ?? 'is not valid'}${e.params && 'allowedValues' in e.params ? ` (${showValue(e.params['allowedValues'])})` : ''}` : 'is not valid';
+  throw new InputError(safeLine(`${where}: ${field} ${detail} (schemas/result.schema.json): re-run the solve that wrote it`));
 }

@@ -1,5 +1,6 @@
 // Which ring pairs can touch: every pair in the cell, and for a lattice (weave) also each ring
 // against the translated copies of every ring in neighbouring cells.
+import { nearPairs } from '../kernel/broadphase.js';
 import type { Layout, Vec3 } from './types.js';
 
 /** Largest lattice coefficient enumerated; a lattice needing more is rejected at parse time. */
@@ -27,7 +28,37 @@ export function ringPairs(layout: Pick<Layout, 'rings' | 'lattice'>, margin = 0)
   const n = rings.length;
   const pairs: RingPair[] = [];
   for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) pairs.push({ i, j, shift: vectors.map(() => 0), offset: [0, 0, 0] });
-  if (vectors.length === 0) return pairs;
+  shiftedPairs(layout, margin, pairs);
+  return pairs;
+}
+
+/**
+ * Like ringPairs, but base-cell pairs too only when their bounding spheres come within `margin`
+ * (|ci - cj| <= Ri + Rj + margin), found by the broad phase in O(N + pairs) rather than all N(N-1)/2.
+ * Pairs farther apart can neither touch within the margin nor link.
+ */
+export function nearRingPairs(layout: Pick<Layout, 'rings' | 'lattice'>, margin = 0): RingPair[] {
+  const rings = layout.rings;
+  const n = rings.length;
+  const centers = new Float64Array(3 * n), reach = new Float64Array(n);
+  rings.forEach((r, i) => {
+    centers[3 * i] = r.center[0]; centers[3 * i + 1] = r.center[1]; centers[3 * i + 2] = r.center[2];
+    reach[i] = r.radius;
+  });
+  const near = nearPairs(centers, reach, margin);
+  const zero = (layout.lattice?.vectors ?? []).map(() => 0);
+  const pairs: RingPair[] = [];
+  for (let k = 0; k < near.length; k += 2) pairs.push({ i: near[k]!, j: near[k + 1]!, shift: zero.slice(), offset: [0, 0, 0] });
+  shiftedPairs(layout, margin, pairs);
+  return pairs;
+}
+
+/** Append each ring against the lattice copies of every ring that come within `margin`. */
+function shiftedPairs(layout: Pick<Layout, 'rings' | 'lattice'>, margin: number, pairs: RingPair[]): void {
+  const rings = layout.rings;
+  const vectors = layout.lattice?.vectors ?? [];
+  const n = rings.length;
+  if (vectors.length === 0) return;
   const reach = latticeReach(layout, margin);
   for (const shift of shifts(reach)) {
     const offset = combine(vectors, shift);
@@ -46,7 +77,6 @@ export function ringPairs(layout: Pick<Layout, 'rings' | 'lattice'>, margin = 0)
       }
     }
   }
-  return pairs;
 }
 
 /**

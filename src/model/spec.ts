@@ -7,7 +7,7 @@ import { connectedness, linkingMatrix } from '../topology/index.js';
 import { catalogLayout, looksLikeCatalogSpec, parseCatalogSpec, type CatalogSpec } from './catalog.js';
 import { InputError } from './errors.js';
 import { readJsonFile } from './jsonFile.js';
-import { layoutFromRings, parseLayout } from './layout.js';
+import { checkSolveSize, layoutFromRings, parseLayout } from './layout.js';
 import type { Layout } from './types.js';
 
 export interface ResolvedSpec {
@@ -51,6 +51,7 @@ export function resolveSpec(arg: string, options: ResolveOptions = {}): Resolved
   }
   let layout = readLayout(text);
   const source = basename(text);
+  checkSolveSize(layout, source);
   const linking = linkingMatrix(layout.rings);
   checkHeld(linking, layout, source);
   const notes: string[] = [];

@@ -30,6 +30,12 @@ export interface RingOrbits {
   fromRep: number[];
 }
 
+/**
+ * Largest symmetry order accepted, from a layout file or --symmetry: the group is built element by element
+ * (2N rotation matrices and ring maps), and the catalogue's largest link has 64 rings.
+ */
+export const MAX_SYMMETRY_ORDER = 64;
+
 /** A normal this far (relative) from the invariant direction after averaging means no consistent symmetric pose. */
 const MIN_AVERAGED_NORMAL = 0.5;
 /** Two radii closer than this (relative) may be images of one another. */
@@ -48,8 +54,8 @@ export function parseSymmetryOption(text: string, ringCount: number): Symmetry |
   }
   const type = m[1] as 'cyclic' | 'dihedral';
   const order = Number(m[2]);
-  if (!Number.isSafeInteger(order) || order < 1) {
-    throw new InputError(`--symmetry: order ${m[2]} must be a whole number >= 1 (for example ${type}:3)`);
+  if (!Number.isSafeInteger(order) || order < 1 || order > MAX_SYMMETRY_ORDER) {
+    throw new InputError(`--symmetry: order ${m[2]} must be a whole number from 1 to ${MAX_SYMMETRY_ORDER} (for example ${type}:3)`);
   }
   if (ringCount % order !== 0 && (ringCount - 1) % order !== 0) {
     throw new InputError(

@@ -34,6 +34,13 @@ export interface Connectedness {
  */
 export function connectedness(matrix: readonly (readonly number[])[], extraEdges: readonly [number, number][] = []): Connectedness {
   const n = matrix.length;
+  const edges: [number, number][] = [];
+  for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) if (matrix[i]![j] !== 0) edges.push([i, j]);
+  return connectednessOf(n, [...edges, ...extraEdges]);
+}
+
+/** Components of n rings joined by the linked pairs `edges` (the sparse form; (i, i) marks a ring linked to its own copy). */
+export function connectednessOf(n: number, edges: readonly [number, number][]): Connectedness {
   const parent = Array.from({ length: n }, (_, i) => i);
   const find = (i: number): number => {
     while (parent[i] !== i) i = parent[i] = parent[parent[i]!]!;
@@ -44,15 +51,7 @@ export function connectedness(matrix: readonly (readonly number[])[], extraEdges
     if (a !== b) parent[Math.max(a, b)] = Math.min(a, b);
   };
   const held = new Array<boolean>(n).fill(false);
-  for (let i = 0; i < n; i++) {
-    for (let j = i + 1; j < n; j++) {
-      if (matrix[i]![j] !== 0) {
-        join(i, j);
-        held[i] = held[j] = true;
-      }
-    }
-  }
-  for (const [i, j] of extraEdges) {
+  for (const [i, j] of edges) {
     join(i, j);
     if (i !== j) held[i] = held[j] = true;
     else held[i] = true;
