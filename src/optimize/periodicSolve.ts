@@ -14,6 +14,7 @@ import { periodicLinks, sameLinks } from '../model/periodic.js';
 import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
 import { certify, CURVATURE_TOL } from './certificate.js';
+import { layoutFrame, optionsIn, periodicOutcomeOut, periodicProblemIn } from './layoutFrame.js';
 import { readySolvers, type InnerAlgorithm } from './localStep.js';
 import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from './outerLoop.js';
 import { seededRandom } from './perturb.js';
@@ -35,6 +36,12 @@ const SCAN_MARGIN_REL = 2;
 
 export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   validate(problem);
+  // Solve centred and in units of the largest radius (layoutFrame.ts), then map back.
+  const frame = layoutFrame(problem.rings);
+  return periodicOutcomeOut(frame, await solveInFrame(periodicProblemIn(frame, problem), optionsIn(frame, options)), problem);
+}
+
+async function solveInFrame(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   await readySolvers();
   const w = problem.tubeRatios.slice();
   const R = Float64Array.from(problem.rings.map((r) => r.radius));

@@ -16,6 +16,7 @@ import type { Ring, Symmetry } from '../model/types.js';
 import { linkingMatrix } from '../topology/index.js';
 import { buildChart, posedAt, ringsOf, type Chart, type GaugeGroup, type Posed } from './chart.js';
 import { activeSet, collectConstraints } from './collect.js';
+import { inflateOutcomeOut, inflateProblemIn, layoutFrame, optionsIn } from './layoutFrame.js';
 import { certify, CURVATURE_TOL } from './certificate.js';
 import type { Constraint, DepartureSpec } from './constraints.js';
 import { readySolvers, type InnerAlgorithm } from './localStep.js';
@@ -34,6 +35,12 @@ const DEPARTURE_ROUNDING_REL = 1e-12;
 
 export async function solveInflate(problem: InflateProblem, options: SolveOptions): Promise<SolveOutcome> {
   validate(problem);
+  // Solve centred and in units of the largest radius (layoutFrame.ts), then map back.
+  const frame = layoutFrame(problem.rings, problem.symmetry ?? problem.departure?.symmetry ?? null);
+  return inflateOutcomeOut(frame, await solveInFrame(inflateProblemIn(frame, problem), optionsIn(frame, options)), problem);
+}
+
+async function solveInFrame(problem: InflateProblem, options: SolveOptions): Promise<SolveOutcome> {
   await readySolvers();
   const w = problem.tubeRatios.slice();
   const n = problem.rings.length;
