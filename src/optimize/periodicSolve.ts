@@ -11,7 +11,7 @@
 // certified.
 import { InputError } from '../model/errors.js';
 import { periodicLinks, sameLinks } from '../model/periodic.js';
-import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
+import { MAX_LATTICE_REACH } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
 import { certify, CURVATURE_TOL } from './certificate.js';
 import { layoutFrame, optionsIn, periodicOutcomeOut, periodicProblemIn } from './layoutFrame.js';
@@ -25,7 +25,7 @@ import {
 import { periodicKktModel, polishPeriodic } from './periodicPolish.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
-import { maxViolation, trueTube } from './scan.js';
+import { maxViolation, periodicNearPairs, trueTube } from './scan.js';
 import { criticalCurvature } from './secondOrder.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
@@ -121,8 +121,8 @@ function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
   const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
   const margin = 2 * Math.max(...ctx.w) * ctx.tMax + SCAN_MARGIN_REL * ctx.scale;
   // A step that makes the lattice vectors nearly parallel would need thousands of copies: reject it.
-  if (latticeReach({ rings, lattice }, margin).some((k) => k > MAX_LATTICE_REACH)) return { rings, lattice, scans: [], t: -Infinity };
-  const pairs: PeriodicPair[] = ringPairs({ rings, lattice }, margin).map((p) => ({ a: p.i, b: p.j, shift: p.shift }));
+  const pairs: PeriodicPair[] | null = periodicNearPairs(rings, lattice, margin, MAX_LATTICE_REACH);
+  if (pairs === null) return { rings, lattice, scans: [], t: -Infinity };
   const scans = scanPeriodic(pp, pairs, ctx.w);
   return { rings, lattice, scans, t: trueTube(scans, ctx.R, ctx.w) };
 }

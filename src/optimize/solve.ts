@@ -13,7 +13,6 @@
 import { InputError } from '../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../model/symmetry.js';
 import type { Ring, Symmetry } from '../model/types.js';
-import { linkingMatrix } from '../topology/index.js';
 import { buildChart, posedAt, ringsOf, type Chart, type GaugeGroup, type Posed } from './chart.js';
 import { activeSet, collectConstraints } from './collect.js';
 import { inflateOutcomeOut, inflateProblemIn, layoutFrame, optionsIn } from './layoutFrame.js';
@@ -25,7 +24,7 @@ import { perturbRings } from './perturb.js';
 import { polish, ringKktModel } from './polish.js';
 import { criticalCurvature } from './secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
-import { maxViolation, radiusLimit, representativePairs, scanPairs, trueTube, type PairScan } from './scan.js';
+import { linkingHolds, maxViolation, radiusLimit, representativePairs, scanPairs, trueTube, type PairPlan, type PairScan } from './scan.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
 } from './trustRegion.js';
@@ -106,7 +105,7 @@ type Final = Assessed<RingState, Constraint>;
 interface Context {
   orbits: RingOrbits;
   gauge: GaugeGroup;
-  pairs: [number, number][];
+  pairs: PairPlan;
   w: number[];
   dep: DepartureSpec | null;
   linking: number[][];
@@ -204,17 +203,12 @@ function infeasible(rings: Ring[], w: number[], why: string): SolveOutcome {
 function startIsValid(rings: Ring[], linking: number[][], w: number[]): boolean {
   if (!sameLinking(rings, linking)) return false;
   const orbits = trivialOrbits(rings.length);
-  const all: [number, number][] = [];
-  for (let i = 0; i < rings.length; i++) for (let j = i + 1; j < rings.length; j++) all.push([i, j]);
-  return trueTube(scanPairs(posedOf(rings, orbits), all, w), radii(rings), w) > 0;
+  return trueTube(scanPairs(posedOf(rings, orbits), representativePairs(orbits, rings.length), w), radii(rings), w) > 0;
 }
 
+/** Linking numbers as intended, computed only where bounding spheres meet (scan.ts linkingHolds). */
 function sameLinking(rings: Ring[], linking: number[][]): boolean {
-  const L = linkingMatrix(rings);
-  for (let i = 0; i < rings.length; i++) {
-    for (let j = 0; j < rings.length; j++) if (i !== j && (L[i]![j] ?? 0) !== (linking[i]?.[j] ?? 0)) return false;
-  }
-  return true;
+  return linkingHolds(rings, linking);
 }
 
 /** The departure bound holds (up to rounding of the projection). */
