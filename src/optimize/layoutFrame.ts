@@ -125,10 +125,12 @@ function outcomeOut<O extends SolveOutcome>(f: LayoutFrame, o: O, original: read
   const tube = back(o.tube);
   // The message quotes the working-frame tube; quote the reported one instead.
   const message = o.message.split(`tube ${o.tube} `).join(`tube ${tube} `);
-  return {
+  const out: SolveOutcome = {
     status: o.status, tube, rings: ringsOut(f, o.rings, tube, ratios, original), iterations: o.iterations,
     history: o.history.map(back),
     contacts: o.contacts.map((c) => ({ ...c, onA: pointOut(f, c.onA), onB: pointOut(f, c.onB), distance: c.distance * f.unit })),
     certificate: { ...o.certificate }, message,
   };
+  if (o.stopReason !== undefined) out.stopReason = o.stopReason;
+  return out;
 }

@@ -64,6 +64,7 @@ async function solveInFrame(problem: PeriodicProblem, options: SolveOptions): Pr
   const run = await runOuterLoop(start, {
     scale, tMax, finalTol: ctx.finalTol, algorithm,
     maxIterations: options.maxIterations, maxEscapes: ctx.maxEscapes, onIteration: options.onIteration,
+    deadline: options.deadline,
     escapeSizes: ESCAPE_STEPS_REL,
     chart: (s) => periodicLoopChart(s, ctx),
     admissible: (s) => sameLinks(ctx.links, periodicLinks(s.rings, s.lattice)),
@@ -74,7 +75,7 @@ async function solveInFrame(problem: PeriodicProblem, options: SolveOptions): Pr
   return {
     status: run.status, tube: fin.t, rings: withTubes(fin.rings, fin.t, w), lattice: copyLattice(fin.lattice),
     iterations: run.iterations, history: run.history, contacts: run.fin.contacts, certificate: run.fin.cert.certificate,
-    message: run.message,
+    message: run.message, stopReason: run.stopReason,
   };
 }
 

@@ -77,6 +77,7 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   const run = await runOuterLoop(state, {
     scale, tMax: radiusLimit(radii(start), w), finalTol: ctx.finalTol, algorithm,
     maxIterations: options.maxIterations, maxEscapes: options.maxEscapes ?? MAX_ESCAPES, onIteration: options.onIteration,
+    deadline: options.deadline,
     // Under a departure bound ε a step of s moves the departure by at most s: try steps that fit first.
     escapeSizes: dep ? [0.25 * dep.epsilon / scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL,
     chart: (s) => ringLoopChart(s, ctx),
@@ -88,6 +89,7 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   return {
     status: run.status, tube: fin.state.t, rings: withTubes(fin.state.rings, fin.state.t, w), iterations: run.iterations,
     history: run.history, contacts: fin.cert.contacts, certificate: fin.cert.certificate, message: run.message,
+    stopReason: run.stopReason,
   };
 }
 
