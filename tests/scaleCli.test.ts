@@ -34,6 +34,21 @@ describe('catalogue limits', () => {
   });
 });
 
+describe('weave blocks', () => {
+  it('a 2-in-1 block of 100 cells (200 rings) is re-checked as a whole; a 40 x 40 sheet block is refused naming --repeats and the limit', async () => {
+    const { code, io } = await run(['inflate', 'weave:2-in-1', '--json', '--starts', '1', '--workers', '1', '--repeats', '100']);
+    expect(code).toBe(0);
+    const r = JSON.parse(io.stdout[0]!) as SolveResult;
+    expect(r.rings).toHaveLength(200);
+    expect(r.verification.ok).toBe(true);
+    // 2-in-1 minimum aspect ratio 2 (packing bound k = 2, Graham et al. 1998; docs/weaves.md).
+    expect(Math.abs(r.aspectRatio - 2)).toBeLessThan(1e-8);
+    const big = await run(['inflate', 'weave:euro-4-in-1', '--starts', '1', '--workers', '1', '--repeats', '40']);
+    expect(big.code).toBe(2);
+    expect(big.io.stderr.join('\n')).toMatch(/--repeats: 40 cells per direction make \d+ rings, above the limit of 1024 rings per block; use --repeats \d+ or fewer/);
+  });
+});
+
 describe('--time-limit', () => {
   it('a chain stopped after 0.5 s is stalled with stopReason "time limit", checked, and carries its gap to the bound', async () => {
     const { code, io } = await run(['inflate', 'chain:24', '--json', '--starts', '1', '--workers', '1', '--time-limit', '0.5']);
