@@ -6,7 +6,7 @@
 import { availableParallelism, loadavg } from 'node:os';
 import { verifyConfiguration } from '../src/check/verify.js';
 import { buildChart, posedAt } from '../src/optimize/chart.js';
-import { representativePairs, scanPairs } from '../src/optimize/scan.js';
+import { pairPlan, scanPairs } from '../src/optimize/scan.js';
 import { trivialOrbits } from '../src/model/symmetry.js';
 import type { Ring } from '../src/model/types.js';
 import { linkingMatrix } from '../src/topology/index.js';
@@ -49,7 +49,7 @@ for (const n of SIZES) {
   const chart = buildChart(rings, orbits, false);
   const posed = posedAt(chart, new Float64Array(chart.nFree));
   const w = rings.map(() => 1);
-  const plan = representativePairs(orbits, n);
+  const plan = pairPlan(orbits, n);
   let scanned = 0;
   const near = time(() => { scanned = scanPairs(posed, plan, w).length; });
   rows.push({ case: 'pair scan, broad phase', n, medianSeconds: median(near), minSeconds: Math.min(...near), pairs: scanned, note: '' });

@@ -6,7 +6,7 @@
 // Knots and Links, 1976, ch. 5D: the disk is a Seifert surface), which lies in that sphere.
 import { describe, expect, it } from 'vitest';
 import { buildChart, posedAt } from '../src/optimize/chart.js';
-import { linkingHolds, periodicNearPairs, representativePairs, scanMargin, scanPairs } from '../src/optimize/scan.js';
+import { linkingHolds, periodicNearPairs, pairPlan, scanMargin, scanPairs } from '../src/optimize/scan.js';
 import { catalogLayout } from '../src/model/catalog.js';
 import { ringPairs } from '../src/model/ringPairs.js';
 import { ringOrbits, trivialOrbits, type RingOrbits } from '../src/model/symmetry.js';
@@ -45,7 +45,7 @@ describe('pair scan with bounding spheres', () => {
       const w = rings.map((_, i) => 1 + (i % 3) * 0.5);
       const orbits = trivialOrbits(n);
       const p = posed(rings, orbits);
-      const got = scanPairs(p, representativePairs(orbits, n), w).map((s) => [s.a, s.b]);
+      const got = scanPairs(p, pairPlan(orbits, n), w).map((s) => [s.a, s.b]);
       const all = scanPairs(p, allRepresentatives(orbits, n), w);
       const margin = scanMargin(p.R, w);
       const expected = all.filter((s) => {
@@ -70,7 +70,7 @@ describe('pair scan with bounding spheres', () => {
     const n = layout.rings.length;
     const w = layout.rings.map(() => 1);
     const p = posed(layout.rings, orbits);
-    const got = scanPairs(p, representativePairs(orbits, n), w).map((s) => [s.a, s.b]);
+    const got = scanPairs(p, pairPlan(orbits, n), w).map((s) => [s.a, s.b]);
     const all = allRepresentatives(orbits, n);
     // Exactly the all-pairs representatives whose spheres come within the margin, every linked pair's orbit present.
     const margin = scanMargin(p.R, w);

@@ -45,9 +45,16 @@ export interface PairPlan {
   perms: readonly (readonly number[])[];
 }
 
-/** One pair per orbit of pairs under the group (all pairs i < j without symmetry). */
-export function representativePairs(orbits: RingOrbits, n: number): PairPlan {
+/** The scan plan of a ring solve: one pair per orbit of pairs under the group, near pairs only (see scanPairs). */
+export function pairPlan(orbits: RingOrbits, n: number): PairPlan {
   return { n, perms: orbits.perms };
+}
+
+/** Every pair per orbit of pairs under the group (all pairs i < j without symmetry), near or not: O(N²). */
+export function representativePairs(orbits: RingOrbits, n: number): [number, number][] {
+  const out: [number, number][] = [];
+  for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) if (isRepresentative(orbits.perms, i, j)) out.push([i, j]);
+  return out;
 }
 
 /**

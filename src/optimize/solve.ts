@@ -24,7 +24,7 @@ import { perturbRings } from './perturb.js';
 import { polish, ringKktModel } from './polish.js';
 import { criticalCurvature } from './secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
-import { linkingHolds, maxViolation, radiusLimit, representativePairs, scanPairs, trueTube, type PairPlan, type PairScan } from './scan.js';
+import { linkingHolds, maxViolation, pairPlan, radiusLimit, scanPairs, trueTube, type PairPlan, type PairScan } from './scan.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
 } from './trustRegion.js';
@@ -54,7 +54,7 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   const orbits: RingOrbits = symmetry ? ringOrbits(problem.rings, symmetry) : trivialOrbits(n);
   let start: Ring[] = symmetry ? symmetrize(problem.rings, symmetry, orbits) : problem.rings.map(copyRing);
   const dep: DepartureSpec | null = departure ? { orbits: ringOrbits(start, departure.symmetry), epsilon: departure.epsilon } : null;
-  const pairs = representativePairs(orbits, n);
+  const pairs = pairPlan(orbits, n);
   const scale = Math.min(...problem.rings.map((r) => r.radius));
 
   // Start: perturb from the seed, halving until the linking and the departure bound hold.
@@ -205,7 +205,7 @@ function infeasible(rings: Ring[], w: number[], why: string): SolveOutcome {
 function startIsValid(rings: Ring[], linking: number[][], w: number[]): boolean {
   if (!sameLinking(rings, linking)) return false;
   const orbits = trivialOrbits(rings.length);
-  return trueTube(scanPairs(posedOf(rings, orbits), representativePairs(orbits, rings.length), w), radii(rings), w) > 0;
+  return trueTube(scanPairs(posedOf(rings, orbits), pairPlan(orbits, rings.length), w), radii(rings), w) > 0;
 }
 
 /** Linking numbers as intended, computed only where bounding spheres meet (scan.ts linkingHolds). */
