@@ -1,6 +1,6 @@
 // `thickring catalog [--json]`: the named links that inflate and compare accept as SPEC.
 import type { Command } from 'commander';
-import { catalogEntries, MAX_CATALOG_RINGS, type CatalogEntry } from '../src/model/catalog.js';
+import { catalogEntries, MAX_CATALOG_RINGS, MAX_DENSE_RINGS, type CatalogEntry } from '../src/model/catalog.js';
 import { weaveEntries, type WeaveEntry } from '../src/model/weaves.js';
 import { emit, type Io } from './io.js';
 
@@ -55,7 +55,7 @@ export function formatCatalog(listing: CatalogListing): string {
     }
     lines.push('');
   }
-  lines.push(`Counts N, K run up to ${listing.maxRings}. Note: ${listing.axis}.`);
+  lines.push(`Counts N run up to ${listing.maxRings} for chain and necklace, N and K up to ${MAX_DENSE_RINGS} for torus and star. Note: ${listing.axis}.`);
   lines.push('Round rings cannot form the Borromean rings or any link whose pairs are all unlinked (Freedman & Skora 1987).');
   return lines.join('\n');
 }

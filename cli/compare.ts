@@ -73,6 +73,7 @@ export async function runCompare(arg: string, options: SolveCliOptions, sweepPoi
       workers: options.workers,
       seed: options.seed,
       tol: options.tol,
+      timeLimit: options.timeLimit,
       ...(sweepPoints !== undefined ? { sweepPoints } : {}),
       onProgress: progress.update,
     });
@@ -91,7 +92,7 @@ export async function runWeaveCompare(arg: string, options: SolveCliOptions, raw
     throw new InputError('--wire-diameter: only sets the scale of the weight; give --density as well (g/cm3 or a material name such as steel)');
   }
   const run = await runPeriodicCompare(arg, {
-    starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
+    starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol, timeLimit: options.timeLimit,
     ...(options.radii ? { radii: options.radii } : {}),
     ...(options.symmetry !== undefined ? { symmetry: options.symmetry } : {}),
   }, (phase, e) => io.err(`compare: ${phase} ${e.done}/${e.total}: tube ${Number.isFinite(e.tube) ? Number(e.tube.toPrecision(8)) : '-'} (layout units)`));

@@ -77,6 +77,7 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io, 
       workers: options.workers,
       seed: options.seed,
       tol: options.tol,
+      timeLimit: options.timeLimit,
       spec: resolved.spec,
       command: 'inflate',
       units: layout.units ?? null,
@@ -115,7 +116,7 @@ export async function runWeaveInflate(arg: string, options: SolveCliOptions, raw
   const progress = progressReporter(io, options.starts);
   try {
     const run = await runPeriodicInflate(arg, {
-      starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
+      starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol, timeLimit: options.timeLimit,
       ...(options.radii ? { radii: options.radii } : {}),
       ...(options.symmetry !== undefined ? { symmetry: options.symmetry } : {}),
       ...(raw['density'] !== undefined ? { density: String(raw['density']) } : {}),
@@ -205,6 +206,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
       `linking ${v.linkingPreserved ? 'preserved' : 'NOT preserved'}; tube ${v.tubeWithinRadius ? '<=' : 'EXCEEDS'} core radius`,
   );
   for (const m of v.messages) lines.push(`  ${m}`);
+  if (r.stopReason !== undefined) lines.push(`Stopped short: ${r.stopReason}; the tube above is the checked one, ${r.bound ? `${sci(r.bound.gap)} (dimensionless) below the packing bound` : 'with no packing bound to compare'}.`);
   for (const n of run.notes) lines.push(n);
   lines.push('');
   lines.push('Rings');
@@ -265,16 +267,16 @@ const HEARTBEAT_LINE_S = 10;
 function progressReporter(io: Io, total: number): Progress {
   if (io.interactive) {
     const bar = new cliProgress.SingleBar(
-      { format: 'inflate [{bar}] {value}/{total} starts | best tube {best} | {running}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
+      { format: 'inflate [{bar}] {value}/{total} starts | {duration_formatted} elapsed | best tube {best} | {running}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
       cliProgress.Presets.shades_classic,
     );
     bar.start(total, 0, { best: '-', running: '' });
     return {
       update: (e) => {
-        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : num(e.bestTube) });
+        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : `${num(e.bestTube)} (layout units)` });
         for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       },
-      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)}` }),
+      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)} (layout units)` }),
       stop: () => bar.stop(),
     };
   }
@@ -290,7 +292,7 @@ function progressReporter(io: Io, total: number): Progress {
     update: (e) => {
       for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       io.err(
-        `start ${e.start} (${e.done}/${e.total}, seed ${e.seed}): ${e.status}, tube ${Number.isNaN(e.tube) ? '-' : num(e.tube)}` +
+        `start ${e.start} (${e.done}/${e.total}, seed ${e.seed}) after ${Math.round((Date.now() - t0) / 1000)} s: ${e.status}, tube ${Number.isNaN(e.tube) ? '-' : num(e.tube)}` +
           `${e.retries ? `, ${e.retries} worker crash${e.retries > 1 ? 'es' : ''} retried` : ''}; best ${Number.isNaN(e.bestTube) ? '-' : num(e.bestTube)} (layout units)`,
       );
     },

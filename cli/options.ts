@@ -14,6 +14,8 @@ export interface SolveCliOptions {
   workers: number;
   seed: number;
   tol: number;
+  /** Wall-clock seconds for the solve (every start stops then and reports what it has). */
+  timeLimit: number;
 }
 
 export const DEFAULT_STARTS = 4;
@@ -26,6 +28,9 @@ export const MAX_SEED = 2 ** 31 - 1;
 /** Tolerances below this ask for more than double precision can give on a tube radius. */
 export const MIN_TOL = 1e-14;
 export const MAX_TOL = 1e-2;
+/** Default and largest --time-limit (seconds): generous, one hour; at most a week. */
+export const DEFAULT_TIME_LIMIT_S = 3600;
+export const MAX_TIME_LIMIT_S = 7 * 24 * 3600;
 
 /** Add the shared solving options to a command. */
 export function addSolveOptions(cmd: Command): Command {
@@ -35,7 +40,8 @@ export function addSolveOptions(cmd: Command): Command {
     .option('--starts <n>', `number of seeded starts (default ${DEFAULT_STARTS})`)
     .option('--workers <n>', 'worker threads (default: cores available, at most the starts)')
     .option('--seed <n>', `seed of the start perturbations (default ${DEFAULT_SEED}); start 0 is always the layout as given`)
-    .option('--tol <x>', `relative tolerance on the tube radius, dimensionless (default ${DEFAULT_TOL})`);
+    .option('--tol <x>', `relative tolerance on the tube radius, dimensionless (default ${DEFAULT_TOL})`)
+    .option('--time-limit <sec>', `wall-clock seconds after which every start stops and reports its verified tube, status stalled (default ${DEFAULT_TIME_LIMIT_S})`);
 }
 
 /** Validate the raw commander values of the shared options. */
@@ -46,7 +52,8 @@ export function readSolveOptions(raw: Record<string, unknown>): SolveCliOptions 
     : wholeNumber(raw['workers'], '--workers', 1, MAX_WORKERS, '2');
   const seed = raw['seed'] === undefined ? DEFAULT_SEED : wholeNumber(raw['seed'], '--seed', 0, MAX_SEED, '42');
   const tol = raw['tol'] === undefined ? DEFAULT_TOL : tolerance(raw['tol']);
-  const out: SolveCliOptions = { starts, workers, seed, tol };
+  const timeLimit = raw['timeLimit'] === undefined ? DEFAULT_TIME_LIMIT_S : seconds(raw['timeLimit']);
+  const out: SolveCliOptions = { starts, workers, seed, tol, timeLimit };
   if (raw['radii'] !== undefined) out.radii = radiiList(raw['radii']);
   if (raw['symmetry'] !== undefined) {
     const s = String(raw['symmetry']).trim();
@@ -83,6 +90,15 @@ function tolerance(v: unknown): number {
   const x = Number(text);
   if (text === '' || !Number.isFinite(x) || x < MIN_TOL || x > MAX_TOL) {
     throw new InputError(`--tol: '${text}' must be a number from ${MIN_TOL} to ${MAX_TOL}, dimensionless (for example --tol 1e-9)`);
+  }
+  return x;
+}
+
+function seconds(v: unknown): number {
+  const text = String(v).trim();
+  const x = Number(text);
+  if (text === '' || !Number.isFinite(x) || !(x > 0) || x > MAX_TIME_LIMIT_S) {
+    throw new InputError(`--time-limit: '${text}' must be a number of seconds > 0 and at most ${MAX_TIME_LIMIT_S} (for example --time-limit 60)`);
   }
   return x;
 }

@@ -130,6 +130,45 @@ describe('verifyConfiguration', () => {
   });
 });
 
+describe('verifyConfiguration on many rings (sphere prefilter)', () => {
+  /** 2-in-1 chain of unit rings 1.5 apart, planes alternating: ring i pierces ring i ± 1's disk 0.5 from its core. */
+  const chain = (n: number): CheckRing[] =>
+    Array.from({ length: n }, (_, i) => ({ name: `R${i}`, center: [1.5 * i, 0, 0] as Vec3, normal: (i % 2 === 0 ? [0, 0, 1] : [0, 1, 0]) as Vec3, radius: 1 }));
+
+  it('a 260-ring chain: linking as the disk-crossing count gives it, tube 0.25 touches, 0.26 overlaps, a far ring moved onto another is caught', () => {
+    // Hand geometry: ring i+1 crosses ring i's plane at distance 0.5 from its core, so the largest tube is 0.25.
+    const rings = chain(260);
+    const linking = rings.map((a) => rings.map((b) => (a === b ? 0 : linkingNumber(a as never, b as never))));
+    const ok = verifyConfiguration({ rings, tube: 0.25, linking });
+    expect(ok.ok).toBe(true);
+    expect(Math.abs(ok.minClearance)).toBeLessThan(1e-9);
+    expect(verifyConfiguration({ rings, tube: 0.26, linking }).ok).toBe(false);
+    // Ring 250 put onto ring 10 (same pose, shifted 0.1 along its axis): those two overlap and link no more as intended.
+    const moved = rings.map((r, i) => (i === 250 ? { ...r, center: [15, 0, 0.1] as Vec3, normal: [0, 0, 1] as Vec3 } : r));
+    const bad = verifyConfiguration({ rings: moved, tube: 0.2, linking });
+    expect(bad.ok).toBe(false);
+    expect(bad.messages.join(' ')).toMatch(/rings R10 and R250: core distance/);
+  });
+
+  it('minClearance is the least over all pairs, also when no pair comes near (brute force over every pair)', () => {
+    const rnd = lcg(77);
+    for (const spread of [3, 20]) {
+      const rings = Array.from({ length: 14 }, (_, k) => {
+        const r = randomRing(rnd, `Q${k}`);
+        return { ...r, center: scale(r.center as Vec3, spread) };
+      });
+      const tube = 0.01;
+      let brute = Infinity;
+      for (let i = 0; i < rings.length; i++) {
+        for (let j = i + 1; j < rings.length; j++) brute = Math.min(brute, (coreDistance(rings[i]!, rings[j]!).distance - 2 * tube) / tube);
+      }
+      const linking = rings.map((a) => rings.map((b) => (a === b ? 0 : linkingNumber(a as never, b as never))));
+      const v = verifyConfiguration({ rings, tube, linking });
+      expect(Math.abs(v.minClearance - brute)).toBeLessThan(1e-9 * Math.max(1, Math.abs(brute)));
+    }
+  });
+});
+
 // ---- helpers -------------------------------------------------------------------------------------
 
 function lcg(seed: number): () => number {

@@ -29,6 +29,8 @@ export interface CompareOptions {
   seed: number;
   tol: number;
   maxIterations?: number;
+  /** Wall-clock seconds for each solving phase (symmetric, perturbed, independent). */
+  timeLimit?: number;
   /** Steps of the symmetry-breaking curve (default 6); 0 skips the curve. */
   sweepPoints?: number;
   onProgress?: (e: CompareProgress) => void;
@@ -64,6 +66,7 @@ export async function compare(resolved: ResolvedSpec, options: CompareOptions): 
   const common = {
     workers: options.workers, tol: options.tol, spec: resolved.spec, command: 'compare', units,
     ...(options.maxIterations !== undefined ? { maxIterations: options.maxIterations } : {}),
+    ...(options.timeLimit !== undefined ? { timeLimit: options.timeLimit } : {}),
   };
   const report = (phase: ComparePhase) => (e: StartProgress): void =>
     options.onProgress?.({ phase, done: e.done, total: e.total, tube: e.tube, bestTube: e.bestTube });

@@ -61,47 +61,54 @@ export function verifyConfiguration(input: VerifyInput, options: VerifyOptions =
     }
   }
 
-  // Distances: skip pairs whose bounding spheres already prove a clearance above the best found so far.
+  // Distances: only pairs whose bounding spheres (core radius plus tube) meet can overlap; among those, skip
+  // pairs whose spheres already prove a clearance above the best found so far. If every near pair is clear,
+  // look again with the sweep widened by that clearance, so minClearance is the least over all pairs.
   let minClearance = Infinity;
-  const pairs: [number, number, number][] = [];
-  for (let i = 0; i < n; i++) {
-    for (let j = i + 1; j < n; j++) {
+  const distance = new Map<number, number>();
+  const tubeOf = (i: number): number => Math.max(0, tube) * (ratios[i] ?? 1);
+  const reach = rings.map((r, i) => r.radius + tubeOf(i));
+  const checkPairs = (margin: number): void => {
+    const pairs: [number, number, number][] = [];
+    for (const [i, j] of nearSpheres(rings, reach, margin)) {
       const a = rings[i]!, b = rings[j]!;
       const gap = dist3(a.center, b.center) - a.radius - b.radius;
       pairs.push([i, j, gap - tube * ((ratios[i] ?? 1) + (ratios[j] ?? 1))]);
     }
-  }
-  pairs.sort((p, q) => p[2] - q[2]);
-  const distance: number[][] = rings.map(() => rings.map(() => Infinity));
-  for (const [i, j, lower] of pairs) {
-    if (lower / unit > minClearance && lower > 0) continue;
-    const d = coreDistance(rings[i]!, rings[j]!).distance;
-    distance[i]![j] = distance[j]![i] = d;
-    const clearance = (d - tube * ((ratios[i] ?? 1) + (ratios[j] ?? 1))) / unit;
-    if (clearance < -tolerance) {
-      messages.push(
-        `rings ${rings[i]!.name} and ${rings[j]!.name}: core distance ${fmt(d)} is less than the sum of tube radii ${fmt(tube * ((ratios[i] ?? 1) + (ratios[j] ?? 1)))}: the tubes overlap by ${fmt(-clearance * unit)} (layout units)`,
-      );
+    pairs.sort((p, q) => p[2] - q[2]);
+    for (const [i, j, lower] of pairs) {
+      if (distance.has(i * n + j)) continue;
+      if (lower / unit > minClearance && lower > 0) continue;
+      const d = coreDistance(rings[i]!, rings[j]!).distance;
+      distance.set(i * n + j, d);
+      const clearance = (d - tube * ((ratios[i] ?? 1) + (ratios[j] ?? 1))) / unit;
+      if (clearance < -tolerance) {
+        messages.push(
+          `rings ${rings[i]!.name} and ${rings[j]!.name}: core distance ${fmt(d)} is less than the sum of tube radii ${fmt(tube * ((ratios[i] ?? 1) + (ratios[j] ?? 1)))}: the tubes overlap by ${fmt(-clearance * unit)} (layout units)`,
+        );
+      }
+      minClearance = Math.min(minClearance, clearance);
     }
-    minClearance = Math.min(minClearance, clearance);
+  };
+  checkPairs(0);
+  if (n >= 2 && !(minClearance <= 0)) {
+    // No near pair touches: the least clearance may be a pair farther apart (or, with no near pair, any pair).
+    checkPairs(Number.isFinite(minClearance) ? minClearance * unit : Infinity);
   }
   if (n < 2) minClearance = Infinity;
 
-  // Linking: every pair, by the Gauss integral; compare up to reversing single rings.
+  // Linking: pairs whose bounding spheres (core radius) meet, by the Gauss integral; compare up to reversing
+  // single rings. Disjoint bounding spheres are separated by a plane, so those rings are unlinked.
   const linking = rings.map(() => rings.map(() => 0));
   let linkingDetermined = true;
-  for (let i = 0; i < n; i++) {
-    for (let j = i + 1; j < n; j++) {
-      // Disjoint bounding spheres are separated by a plane, so the rings are unlinked.
-      if (dist3(rings[i]!.center, rings[j]!.center) > rings[i]!.radius + rings[j]!.radius) continue;
-      const d = Number.isFinite(distance[i]![j]!) ? distance[i]![j]! : coreDistance(rings[i]!, rings[j]!).distance;
-      const g = gaussLinking(rings[i]!, rings[j]!, d);
-      if (g.linking === null) {
-        linkingDetermined = false;
-        messages.push(`rings ${rings[i]!.name} and ${rings[j]!.name}: linking number undetermined (Gauss integral ${g.value.toFixed(3)}; the cores nearly touch)`);
-      }
-      linking[i]![j] = linking[j]![i] = g.linking ?? 0;
+  for (const [i, j] of nearSpheres(rings, rings.map((r) => r.radius), 0)) {
+    const d = distance.get(i * n + j) ?? coreDistance(rings[i]!, rings[j]!).distance;
+    const g = gaussLinking(rings[i]!, rings[j]!, d);
+    if (g.linking === null) {
+      linkingDetermined = false;
+      messages.push(`rings ${rings[i]!.name} and ${rings[j]!.name}: linking number undetermined (Gauss integral ${g.value.toFixed(3)}; the cores nearly touch)`);
     }
+    linking[i]![j] = linking[j]![i] = g.linking ?? 0;
   }
   const linkingPreserved = linkingDetermined && sameLinkUpToReversal(input.linking, linking, rings.map((r) => r.name), messages);
 
@@ -213,13 +220,10 @@ export function gaussLinking(a: CheckRing, b: CheckRing, distance: number): Gaus
 /** Linking matrix of a set of rings by the Gauss integral (null entries where undetermined). */
 export function gaussLinkingMatrix(rings: CheckRing[]): (number | null)[][] {
   const out: (number | null)[][] = rings.map(() => rings.map(() => 0));
-  for (let i = 0; i < rings.length; i++) {
-    for (let j = i + 1; j < rings.length; j++) {
-      if (dist3(rings[i]!.center, rings[j]!.center) > rings[i]!.radius + rings[j]!.radius) continue;
-      const d = coreDistance(rings[i]!, rings[j]!).distance;
-      const g = gaussLinking(rings[i]!, rings[j]!, d).linking;
-      out[i]![j] = out[j]![i] = g;
-    }
+  for (const [i, j] of nearSpheres(rings, rings.map((r) => r.radius), 0)) {
+    const d = coreDistance(rings[i]!, rings[j]!).distance;
+    const g = gaussLinking(rings[i]!, rings[j]!, d).linking;
+    out[i]![j] = out[j]![i] = g;
   }
   return out;
 }
@@ -365,6 +369,36 @@ function tangent(f: Frame, s: number): Vec3 {
 }
 
 const dot = (a: Vec3, b: Vec3): number => a[0] * b[0] + a[1] * b[1] + a[2] * b[2];
+
+/**
+ * Pairs i < j of spheres (centre c_i, radius reach[i]) with |c_i - c_j| <= reach_i + reach_j + margin, by
+ * sort and sweep on the axis of largest spread: O(N log N + pairs overlapping on that axis). The checker's
+ * own prefilter, so it shares no code with the optimiser's broad phase.
+ */
+function nearSpheres(rings: readonly CheckRing[], reach: readonly number[], margin: number): [number, number][] {
+  const n = rings.length;
+  let axis = 0, spread = -1;
+  for (let a = 0; a < 3; a++) {
+    let lo = Infinity, hi = -Infinity;
+    for (const r of rings) { lo = Math.min(lo, r.center[a]!); hi = Math.max(hi, r.center[a]!); }
+    if (hi - lo > spread) { spread = hi - lo; axis = a; }
+  }
+  let maxReach = 0;
+  for (const x of reach) maxReach = Math.max(maxReach, x);
+  const order = Array.from({ length: n }, (_, i) => i).sort((p, q) => rings[p]!.center[axis]! - rings[q]!.center[axis]!);
+  const out: [number, number][] = [];
+  for (let p = 0; p < n; p++) {
+    const i = order[p]!;
+    const xi = rings[i]!.center[axis]!;
+    for (let q = p + 1; q < n; q++) {
+      const j = order[q]!;
+      // Sorted by centre: once the axis gap alone exceeds the widest possible reach, no later sphere is near.
+      if (rings[j]!.center[axis]! - xi > reach[i]! + maxReach + margin) break;
+      if (dist3(rings[i]!.center, rings[j]!.center) <= reach[i]! + reach[j]! + margin) out.push(i < j ? [i, j] : [j, i]);
+    }
+  }
+  return out;
+}
 
 function dist3(a: ArrayLike<number>, b: ArrayLike<number>): number {
   return Math.hypot(a[0]! - b[0]!, a[1]! - b[1]!, a[2]! - b[2]!);

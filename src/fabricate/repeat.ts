@@ -7,8 +7,13 @@ import type { ResultContact, ResultRing } from '../model/result.js';
 import type { Vec3 } from '../model/types.js';
 import type { PeriodicSolveResult } from '../optimize/periodicMultistart.js';
 
-/** Largest number of cells per lattice direction (a 12 × 12 block of a 4-ring cell is 576 rings). */
-export const MAX_REPEATS = 12;
+/** Largest number of cells per lattice direction; the block must also stay within MAX_BLOCK_RINGS. */
+export const MAX_REPEATS = 256;
+/**
+ * Largest block in rings: the independent check of a block costs O(N) for a weave (its sphere prefilter) and the
+ * result file holds an N x N linking matrix (1024 rings: about 1 M entries, a few MB of JSON).
+ */
+export const MAX_BLOCK_RINGS = 1024;
 
 export interface RepeatedResult extends PeriodicSolveResult {
   periodic: PeriodicSolveResult['periodic'] & {
@@ -28,6 +33,11 @@ export function repeatResult(result: PeriodicSolveResult, repeats: number): Repe
   }
   const m = result.rings.length;
   const counts = result.lattice.vectors.map(() => repeats);
+  const blockRings = m * repeats ** counts.length;
+  if (blockRings > MAX_BLOCK_RINGS) {
+    const most = Math.floor((MAX_BLOCK_RINGS / m) ** (1 / counts.length));
+    throw new InputError(`--repeats: ${repeats} cells per direction make ${blockRings} rings, above the limit of ${MAX_BLOCK_RINGS} rings per block; use --repeats ${most} or fewer`);
+  }
   const cells = blockShifts(counts);
   const vectors = result.lattice.vectors;
   const images = expandCells(result.rings.map((r) => ({ name: r.name, center: r.center, normal: r.normal, radius: r.radius })), result.lattice, counts);

@@ -63,6 +63,8 @@ export interface StartRecord {
   history: number[];
   /** Worker crashes survived by this start (WebAssembly aborts). */
   retries: number;
+  /** Why this start stopped: 'polished', 'time limit', 'iteration limit', 'solver failure: ...', ... */
+  stopReason?: string;
 }
 
 export interface Verification {
@@ -95,6 +97,8 @@ export interface SolveResult {
   starts: StartRecord[];
   verification: Verification;
   elapsedSeconds: number;
+  /** Present when the result is not a certified optimum: why the solve stopped short (time or iteration limit, solver failure, ...). */
+  stopReason?: string;
 }
 
 /** Symmetric vs symmetry-broken comparison (`thickring compare`). */

@@ -43,7 +43,7 @@ function buildResult(
   elapsedSeconds: number,
 ): SolveResult {
   const ratios = problem.tubeRatios;
-  const { outcome, status, verification, certificate } = settleBest(run, 'configuration');
+  const { outcome, status, verification, certificate, stopReason } = settleBest(run, 'configuration');
   const rings: Ring[] = outcome?.rings ?? problem.rings;
   const tube = outcome?.tube ?? 0;
   return {
@@ -56,5 +56,6 @@ function buildResult(
     starts: run.starts,
     verification,
     elapsedSeconds,
+    ...(stopReason !== null ? { stopReason } : {}),
   };
 }

@@ -61,6 +61,8 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
   /** Escape step sizes tried in turn (relative to `scale`). */
   escapeSizes: readonly number[];
   onIteration?: ((iteration: number, tube: number) => void) | undefined;
+  /** Date.now() milliseconds at which to stop (SolveOptions.deadline). */
+  deadline?: number | undefined;
   chart(state: S): LoopChart<S, C, P>;
   /** Beyond a positive tube: the linking and any departure bound hold. */
   admissible(state: S): boolean;
@@ -77,6 +79,7 @@ export interface LoopRun<A> {
   /** Tube after each outer iteration, starting with the start's. */
   history: number[];
   escapes: number;
+  stopReason: string;
 }
 
 export async function runOuterLoop<S extends { t: number }, C extends Constraint, P, A extends Assessed<S, C>>(
@@ -106,6 +109,10 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   };
 
   while (iterations < loop.maxIterations) {
+    if (loop.deadline !== undefined && Date.now() >= loop.deadline) {
+      stopReason = 'time limit';
+      break;
+    }
     const chart = loop.chart(state);
     const box = Math.min(delta, BOX_MAX_REL * scale);
     const cons = chart.constraints(MARGIN_BOXES * box);
@@ -183,7 +190,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
     ` (${stopReason}${fin.polishMessage ? `: ${fin.polishMessage}` : ''}${escapes > 0 ? `; left ${escapes} saddle(s)` : ''}); ` +
     `tube ${fin.state.t} (layout units)`;
-  return { fin, status, message, iterations, history, escapes };
+  return { fin, status, message, iterations, history, escapes, stopReason };
 }
 
 /** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */

@@ -44,6 +44,7 @@ export async function runPeriodicCompare(
   const cell = problemOf(resolved);
   const common = {
     workers: options.workers, tol: options.tol, spec: resolved.spec, command: 'compare', units: resolved.layout.units ?? null,
+    ...(options.timeLimit !== undefined ? { timeLimit: options.timeLimit } : {}),
   };
   const report = (phase: PeriodicComparePhase) => (e: StartProgress): void => onProgress?.(phase, e);
 

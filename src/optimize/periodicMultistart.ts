@@ -100,7 +100,7 @@ function buildResult(
   problem: PeriodicProblem, options: PeriodicMultistartOptions, run: StartsRun<PeriodicOutcome>, counts: number[], elapsedSeconds: number,
 ): PeriodicSolveResult {
   const ratios = problem.tubeRatios;
-  const { outcome, status, verification, certificate } = settleBest(run, 'weave');
+  const { outcome, status, verification, certificate, stopReason } = settleBest(run, 'weave');
   const rings = outcome?.rings ?? problem.rings;
   const lattice: Lattice = outcome?.lattice ?? problem.lattice;
   const tube = outcome?.tube ?? 0;
@@ -131,5 +131,6 @@ function buildResult(
     verification,
     periodic,
     elapsedSeconds,
+    ...(stopReason !== null ? { stopReason } : {}),
   };
 }

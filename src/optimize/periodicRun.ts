@@ -13,6 +13,8 @@ export interface PeriodicRunOptions {
   workers: number;
   seed: number;
   tol: number;
+  /** Wall-clock seconds for the run (StartLoopOptions.timeLimit). */
+  timeLimit?: number;
   radii?: number[];
   /** Raw --symmetry: point symmetries of weaves are not imposed, so any value but none is refused. */
   symmetry?: string;
@@ -44,6 +46,7 @@ export async function runPeriodicInflate(arg: string, options: PeriodicRunOption
   const problem = problemOf(resolved);
   let result = await runPeriodicMultistart(problem, {
     starts: options.starts, workers: options.workers, seed: options.seed, tol: options.tol,
+    ...(options.timeLimit !== undefined ? { timeLimit: options.timeLimit } : {}),
     spec: resolved.spec, command, units: resolved.layout.units ?? null,
     ...(options.onProgress ? { onProgress: options.onProgress } : {}),
     ...(options.onIteration ? { onIteration: options.onIteration } : {}),

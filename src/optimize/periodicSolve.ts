@@ -11,9 +11,10 @@
 // certified.
 import { InputError } from '../model/errors.js';
 import { periodicLinks, sameLinks } from '../model/periodic.js';
-import { MAX_LATTICE_REACH, latticeReach, ringPairs } from '../model/ringPairs.js';
+import { MAX_LATTICE_REACH } from '../model/ringPairs.js';
 import type { Lattice, Ring } from '../model/types.js';
 import { certify, CURVATURE_TOL } from './certificate.js';
+import { layoutFrame, optionsIn, periodicOutcomeOut, periodicProblemIn } from './layoutFrame.js';
 import { readySolvers, type InnerAlgorithm } from './localStep.js';
 import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from './outerLoop.js';
 import { seededRandom } from './perturb.js';
@@ -24,7 +25,7 @@ import {
 import { periodicKktModel, polishPeriodic } from './periodicPolish.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
-import { maxViolation, trueTube } from './scan.js';
+import { maxViolation, periodicNearPairs, trueTube } from './scan.js';
 import { criticalCurvature } from './secondOrder.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
@@ -35,6 +36,12 @@ const SCAN_MARGIN_REL = 2;
 
 export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   validate(problem);
+  // Solve centred and in units of the largest radius (layoutFrame.ts), then map back.
+  const frame = layoutFrame(problem.rings);
+  return periodicOutcomeOut(frame, await solveInFrame(periodicProblemIn(frame, problem), optionsIn(frame, options)), problem);
+}
+
+async function solveInFrame(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   await readySolvers();
   const w = problem.tubeRatios.slice();
   const R = Float64Array.from(problem.rings.map((r) => r.radius));
@@ -57,6 +64,7 @@ export async function solvePeriodic(problem: PeriodicProblem, options: SolveOpti
   const run = await runOuterLoop(start, {
     scale, tMax, finalTol: ctx.finalTol, algorithm,
     maxIterations: options.maxIterations, maxEscapes: ctx.maxEscapes, onIteration: options.onIteration,
+    deadline: options.deadline,
     escapeSizes: ESCAPE_STEPS_REL,
     chart: (s) => periodicLoopChart(s, ctx),
     admissible: (s) => sameLinks(ctx.links, periodicLinks(s.rings, s.lattice)),
@@ -67,7 +75,7 @@ export async function solvePeriodic(problem: PeriodicProblem, options: SolveOpti
   return {
     status: run.status, tube: fin.t, rings: withTubes(fin.rings, fin.t, w), lattice: copyLattice(fin.lattice),
     iterations: run.iterations, history: run.history, contacts: run.fin.contacts, certificate: run.fin.cert.certificate,
-    message: run.message,
+    message: run.message, stopReason: run.stopReason,
   };
 }
 
@@ -114,8 +122,8 @@ function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
   const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
   const margin = 2 * Math.max(...ctx.w) * ctx.tMax + SCAN_MARGIN_REL * ctx.scale;
   // A step that makes the lattice vectors nearly parallel would need thousands of copies: reject it.
-  if (latticeReach({ rings, lattice }, margin).some((k) => k > MAX_LATTICE_REACH)) return { rings, lattice, scans: [], t: -Infinity };
-  const pairs: PeriodicPair[] = ringPairs({ rings, lattice }, margin).map((p) => ({ a: p.i, b: p.j, shift: p.shift }));
+  const pairs: PeriodicPair[] | null = periodicNearPairs(rings, lattice, margin, MAX_LATTICE_REACH);
+  if (pairs === null) return { rings, lattice, scans: [], t: -Infinity };
   const scans = scanPeriodic(pp, pairs, ctx.w);
   return { rings, lattice, scans, t: trueTube(scans, ctx.R, ctx.w) };
 }

@@ -36,6 +36,11 @@ export interface SolveOptions {
    */
   maxEscapes?: number;
   onIteration?: (iteration: number, tube: number) => void;
+  /**
+   * Wall-clock time (Date.now() milliseconds, the same clock in every worker) at which the outer loop stops
+   * and reports what it has, status 'stalled' with stopReason 'time limit'.
+   */
+  deadline?: number;
 }
 
 export interface SolveOutcome {
@@ -50,4 +55,6 @@ export interface SolveOutcome {
   contacts: ResultContact[];
   certificate: Certificate;
   message: string;
+  /** Why the outer loop stopped: 'polished', 'iteration limit', 'time limit', 'the local solver failed', ... */
+  stopReason?: string;
 }

@@ -13,9 +13,9 @@
 import { InputError } from '../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../model/symmetry.js';
 import type { Ring, Symmetry } from '../model/types.js';
-import { linkingMatrix } from '../topology/index.js';
 import { buildChart, posedAt, ringsOf, type Chart, type GaugeGroup, type Posed } from './chart.js';
 import { activeSet, collectConstraints } from './collect.js';
+import { inflateOutcomeOut, inflateProblemIn, layoutFrame, optionsIn } from './layoutFrame.js';
 import { certify, CURVATURE_TOL } from './certificate.js';
 import type { Constraint, DepartureSpec } from './constraints.js';
 import { readySolvers, type InnerAlgorithm } from './localStep.js';
@@ -24,7 +24,7 @@ import { perturbRings } from './perturb.js';
 import { polish, ringKktModel } from './polish.js';
 import { criticalCurvature } from './secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
-import { maxViolation, radiusLimit, representativePairs, scanPairs, trueTube, type PairScan } from './scan.js';
+import { linkingHolds, maxViolation, pairPlan, radiusLimit, scanPairs, trueTube, type PairPlan, type PairScan } from './scan.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
 } from './trustRegion.js';
@@ -34,6 +34,12 @@ const DEPARTURE_ROUNDING_REL = 1e-12;
 
 export async function solveInflate(problem: InflateProblem, options: SolveOptions): Promise<SolveOutcome> {
   validate(problem);
+  // Solve centred and in units of the largest radius (layoutFrame.ts), then map back.
+  const frame = layoutFrame(problem.rings, problem.symmetry ?? problem.departure?.symmetry ?? null);
+  return inflateOutcomeOut(frame, await solveInFrame(inflateProblemIn(frame, problem), optionsIn(frame, options)), problem);
+}
+
+async function solveInFrame(problem: InflateProblem, options: SolveOptions): Promise<SolveOutcome> {
   await readySolvers();
   const w = problem.tubeRatios.slice();
   const n = problem.rings.length;
@@ -48,7 +54,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
   const orbits: RingOrbits = symmetry ? ringOrbits(problem.rings, symmetry) : trivialOrbits(n);
   let start: Ring[] = symmetry ? symmetrize(problem.rings, symmetry, orbits) : problem.rings.map(copyRing);
   const dep: DepartureSpec | null = departure ? { orbits: ringOrbits(start, departure.symmetry), epsilon: departure.epsilon } : null;
-  const pairs = representativePairs(orbits, n);
+  const pairs = pairPlan(orbits, n);
   const scale = Math.min(...problem.rings.map((r) => r.radius));
 
   // Start: perturb from the seed, halving until the linking and the departure bound hold.
@@ -71,6 +77,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
   const run = await runOuterLoop(state, {
     scale, tMax: radiusLimit(radii(start), w), finalTol: ctx.finalTol, algorithm,
     maxIterations: options.maxIterations, maxEscapes: options.maxEscapes ?? MAX_ESCAPES, onIteration: options.onIteration,
+    deadline: options.deadline,
     // Under a departure bound ε a step of s moves the departure by at most s: try steps that fit first.
     escapeSizes: dep ? [0.25 * dep.epsilon / scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL,
     chart: (s) => ringLoopChart(s, ctx),
@@ -82,6 +89,7 @@ export async function solveInflate(problem: InflateProblem, options: SolveOption
   return {
     status: run.status, tube: fin.state.t, rings: withTubes(fin.state.rings, fin.state.t, w), iterations: run.iterations,
     history: run.history, contacts: fin.cert.contacts, certificate: fin.cert.certificate, message: run.message,
+    stopReason: run.stopReason,
   };
 }
 
@@ -99,7 +107,7 @@ type Final = Assessed<RingState, Constraint>;
 interface Context {
   orbits: RingOrbits;
   gauge: GaugeGroup;
-  pairs: [number, number][];
+  pairs: PairPlan;
   w: number[];
   dep: DepartureSpec | null;
   linking: number[][];
@@ -197,17 +205,12 @@ function infeasible(rings: Ring[], w: number[], why: string): SolveOutcome {
 function startIsValid(rings: Ring[], linking: number[][], w: number[]): boolean {
   if (!sameLinking(rings, linking)) return false;
   const orbits = trivialOrbits(rings.length);
-  const all: [number, number][] = [];
-  for (let i = 0; i < rings.length; i++) for (let j = i + 1; j < rings.length; j++) all.push([i, j]);
-  return trueTube(scanPairs(posedOf(rings, orbits), all, w), radii(rings), w) > 0;
+  return trueTube(scanPairs(posedOf(rings, orbits), pairPlan(orbits, rings.length), w), radii(rings), w) > 0;
 }
 
+/** Linking numbers as intended, computed only where bounding spheres meet (scan.ts linkingHolds). */
 function sameLinking(rings: Ring[], linking: number[][]): boolean {
-  const L = linkingMatrix(rings);
-  for (let i = 0; i < rings.length; i++) {
-    for (let j = 0; j < rings.length; j++) if (i !== j && (L[i]![j] ?? 0) !== (linking[i]?.[j] ?? 0)) return false;
-  }
-  return true;
+  return linkingHolds(rings, linking);
 }
 
 /** The departure bound holds (up to rounding of the projection). */

@@ -23,6 +23,8 @@ export interface StartLoopOptions {
   /** Start perturbation relative to each ring's radius (dimensionless); start 0 is never perturbed. */
   perturbation?: number;
   algorithm?: Algorithm;
+  /** Wall-clock seconds for the whole run: every start's outer loop stops then and reports what it has. */
+  timeLimit?: number;
   onProgress?: (event: StartProgress) => void;
   /** Heard now and then while a start runs: which start, its outer iteration and current tube (layout units). */
   onIteration?: (event: StartHeartbeat) => void;
@@ -80,6 +82,8 @@ export async function runStarts<O extends SolveOutcome>(
   problem: PoolTask['problem'], options: StartLoopOptions, verify: (outcome: O, clearanceTolerance: number) => Verification,
 ): Promise<StartsRun<O>> {
   const tasks: PoolTask[] = [];
+  // One deadline for all starts, on the wall clock every worker shares.
+  const deadline = options.timeLimit !== undefined ? Date.now() + 1000 * options.timeLimit : undefined;
   for (let k = 0; k < options.starts; k++) {
     const task: PoolTask = {
       id: k,
@@ -90,6 +94,7 @@ export async function runStarts<O extends SolveOutcome>(
         seed: startSeed(options.seed, k),
         perturbation: k === 0 ? 0 : options.perturbation ?? DEFAULT_PERTURBATION,
         algorithm: options.algorithm ?? 'slsqp',
+        ...(deadline !== undefined ? { deadline } : {}),
       },
     };
     const abort = options.simulateAbort?.find((s) => s.start === k);
@@ -132,6 +137,7 @@ export async function runStarts<O extends SolveOutcome>(
     iterations: c.outcome?.iterations ?? 0,
     history: c.outcome?.history ?? [],
     retries: c.result.retries,
+    stopReason: c.outcome ? stopReasonOf(c.outcome) : `solver failure: ${c.result.errors.at(-1) ?? 'no outcome'}`,
   }));
   const errors = checked.flatMap((c) => c.result.errors.map((e) => `start ${c.result.id}: ${e}`));
   return { best: pickBest(checked, options.tol), starts, errors };
@@ -144,7 +150,7 @@ export async function runStarts<O extends SolveOutcome>(
  */
 export function settleBest<O extends SolveOutcome>(
   run: StartsRun<O>, what: string,
-): { outcome: O | null; status: SolveStatus; verification: Verification; certificate: Certificate } {
+): { outcome: O | null; status: SolveStatus; verification: Verification; certificate: Certificate; stopReason: string | null } {
   const { best, starts, errors } = run;
   const outcome = best?.outcome ?? null;
   const verification: Verification = best?.verification ?? {
@@ -167,7 +173,27 @@ export function settleBest<O extends SolveOutcome>(
     certified: false,
     note: 'no solve finished',
   };
-  return { outcome, status, verification, certificate };
+  // Not certified: say why (the chosen start's stop, or what failed), so the tube and the gap are read rightly.
+  let stopReason: string | null = null;
+  if (status === 'failed' && outcome && (outcome.status === 'optimal' || outcome.status === 'stalled')) {
+    stopReason = 'the independent check rejected the solver\'s configuration';
+  } else if (!(status === 'optimal' && certificate.certified)) {
+    stopReason = outcome ? stopReasonOf(outcome) : `solver failure: every start failed${errors.length > 0 ? ` (${errors.at(-1)})` : ''}`;
+  }
+  return { outcome, status, verification, certificate, stopReason };
+}
+
+/**
+ * Why a start stopped, in words: 'time limit', 'iteration limit', 'solver failure: ...', or the outer loop's own
+ * reason ('polished', 'trust region collapsed', ...) with what it means for the certificate.
+ */
+export function stopReasonOf(o: SolveOutcome): string {
+  const r = o.stopReason;
+  if (o.status === 'infeasible') return `infeasible start: ${o.message.replace(/^infeasible start: /, '')}`;
+  if (r === undefined) return o.message;
+  if (r === 'the local solver failed') return 'solver failure: the local step solver failed repeatedly';
+  if (r === 'time limit' || r === 'iteration limit' || o.certificate.certified) return r;
+  return `${r}; the certificate does not hold (see the certificate note)`;
 }
 
 /** The fields every result file starts with, `format` to `rings`; ring i's tube is tube · ratios[i]. */
