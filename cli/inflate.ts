@@ -3,6 +3,7 @@
 // independent check of the answer.
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
+import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
 import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
@@ -237,10 +238,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   lines.push(`Elapsed: ${r.elapsedSeconds.toFixed(2)} s`);
   if (output) lines.push(`Result written to ${output}`);
   lines.push('');
-  lines.push('Cautions:');
-  lines.push('- The tube radius is a geometric limit with zero clearance: real rings need clearance (see thickring fabricate).');
-  lines.push('- Geometry says nothing about strength: do not use these figures for load-bearing, lifting or climbing chain.');
-  lines.push('- Small rings are a choking hazard for children; for skin contact use skin-safe (e.g. nickel-free) materials.');
+  lines.push(CAUTION_TEXT);
   return lines.join('\n');
 }
 

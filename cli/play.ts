@@ -2,6 +2,7 @@
 // the second-order test at a claimed optimum, and how far each ring can move on its own.
 import type { Command } from 'commander';
 import { analyzePlay, fmt, type PlayReport } from '../src/analyze/play.js';
+import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
 import { emit, type Io } from './io.js';
@@ -61,8 +62,8 @@ export function formatPlay(r: PlayReport, file: string): string {
   ]);
   lines.push(table(head, rows));
   for (const n of r.notes) lines.push(`Note: ${n}`);
-  lines.push('Caution: play is geometric, for perfectly round rings of exact size; printed or bent rings shrink, sag and spring back.');
-  lines.push('Caution: rings that rattle can pinch skin or hair, and small loose parts are a choking hazard: keep them from children.');
+  lines.push('Play is geometric, for perfectly round rings of exact size; printed or bent rings shrink, sag and spring back, and rings that rattle can pinch skin or hair.');
+  lines.push(CAUTION_TEXT);
   return lines.join('\n');
 }
 

@@ -116,7 +116,7 @@ export function buildReportHtml(result: SolveResult | CompareResult, options: Re
     body: checksBlock(compare ? [['symmetric', compare.symmetric], ['broken', compare.broken]] : [['', result]]) +
       (compare ? comparisonChecks(compare) : ''),
   });
-  sections.push({ title: 'Before you make it', lead: '', body: cautions() });
+  sections.push({ title: 'Cautions', lead: '', body: cautions() });
 
   const html = page(result, compare, sections, plots, options);
   return { html, plots: plots.map((p) => p.id), sections: sections.map((s) => s.title) };
@@ -305,10 +305,6 @@ function comparisonChecks(c: CompareResult): string {
 }
 
 function cautions(): string {
-  const items = [
-    'These are geometric figures for perfectly round, rigid rings at exact poses, touching with zero clearance. ' +
-      'Wire springs back, prints shrink and sag, and plating adds thickness: leave clearance (thickring fabricate adds it per process).',
-    ...CAUTIONS,
-  ];
+  const items = CAUTIONS;
   return `<ul class="cautions">${items.map((t) => `<li>${h(t)}</li>`).join('')}</ul>`;
 }

@@ -49,7 +49,7 @@ describe('thickring play', () => {
     expect(out).toContain('NOT LOCKED');
     expect(out).toContain('Tube analysed: 0.3 mm');
     expect(out).toContain('translations in mm, turns in degrees');
-    expect(out).toContain('Caution:');
+    expect(out).toContain('Cautions:');
   });
 
   it('exits with 2 on bad input, naming the value', async () => {
