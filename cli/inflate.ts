@@ -173,10 +173,10 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const scale = Math.max(...r.rings.map((x) => x.radius));
   const lines: string[] = [];
   lines.push(`thickring inflate ${r.spec}: ${r.rings.length} rings, lengths in ${u}`);
-  lines.push(`Status: ${r.status}; ${optimalityText(optimalityOf(r))}`);
+  lines.push(`Status: ${r.status}; ${optimalityText(optimalityOf(r), r.symmetry)}`);
   lines.push(`Tube radius: ${L(r.tube)} (wire diameter ${L(2 * r.tube)})`);
   lines.push(`Tube / smallest core radius: ${num(r.tubeOverCore)} (dimensionless)`);
-  lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(r.aspectRatio)} (dimensionless)`);
+  lines.push(`Aspect ratio (inner diameter / wire diameter), smallest over the rings${r.aspectRatioRing ? `, ring ${r.aspectRatioRing}` : ''}: ${num(r.aspectRatio)} (dimensionless)`);
   if ('periodic' in r) lines.push(...weaveLines(r as PeriodicSolveResult, u));
   if (r.symmetry) lines.push(`Symmetry imposed: ${r.symmetry.type}:${r.symmetry.order} about axis [${r.symmetry.axis.join(', ')}] through [${r.symmetry.origin.join(', ')}]`);
   else lines.push('Symmetry imposed: none');

@@ -196,14 +196,14 @@ function cards(result: SolveResult, compare: CompareResult | null): string {
   const list = [
     card('tube radius', num(result.tube), unit),
     card('tube / core', num(result.tubeOverCore, 4), DIMENSIONLESS),
-    card('aspect ratio', num(result.aspectRatio, 4), 'inner / wire diameter, dimensionless'),
+    card('aspect ratio', num(result.aspectRatio, 4), `inner / wire diameter, smallest over the rings${result.aspectRatioRing ? ` (ring ${result.aspectRatioRing})` : ''}, dimensionless`),
   ];
   if (compare) {
     list.push(card('symmetry gain', num(compare.gain, 4), `${unit} (${num(compare.gainPercent, 3)} %)`));
   }
   list.push(card('gap to bound', result.bound ? percent(result.bound.gap) : 'n/a',
     result.bound ? `bound ${num(result.bound.tube)} ${unit}` : 'no bound for this layout'));
-  list.push(card('status', result.status, optimalityText(optimalityOf(result))));
+  list.push(card('status', result.status, optimalityText(optimalityOf(result), result.symmetry)));
   return `<div class="cards">${list.join('')}</div>`;
 }
 

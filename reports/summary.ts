@@ -13,10 +13,10 @@ export function figureRows(r: SolveResult): [string, string, string][] {
   const okStarts = r.starts.filter((s) => s.status === 'optimal').length;
   return [
     ['status', r.status, ''],
-    ['optimality', optimalityText(optimalityOf(r)), ''],
+    ['optimality', optimalityText(optimalityOf(r), r.symmetry), ''],
     ['tube radius r', num(r.tube), unit],
     ['tube / smallest core radius', num(r.tubeOverCore), DIMENSIONLESS],
-    ['aspect ratio (inner diam. / wire diam.)', num(r.aspectRatio, 4), DIMENSIONLESS],
+    ['aspect ratio (inner diam. / wire diam.)', num(r.aspectRatio, 4) + (r.aspectRatioRing ? ` (smallest, ring ${r.aspectRatioRing})` : ''), DIMENSIONLESS],
     ['packing bound on r', r.bound ? num(r.bound.tube) : 'none', r.bound ? unit : ''],
     ['gap to bound', r.bound ? percent(r.bound.gap) : 'n/a', ''],
     ['certificate balance residual', num(r.certificate.balanceResidual, 3), DIMENSIONLESS],

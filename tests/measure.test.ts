@@ -26,8 +26,9 @@ describe('measureLayout against closed forms', () => {
     expect(m.pairs[0]!.continuum?.kind).toBe('coaxial');
     expect(m.tube).toBeCloseTo(d / 2, 10);
     expect(m.limitedBy).toEqual({ rings: [], pairs: [{ a: 'A', b: 'B' }] });
-    // Thinnest wall relative to wire: the larger ring, (R1 - t) / t.
-    expect(m.aspectRatio).toBeCloseTo((R1 - d / 2) / (d / 2), 9);
+    // The headline is the smallest aspect ratio over the rings (design contract): the smaller ring, (R0 - t) / t.
+    expect(m.aspectRatio).toBeCloseTo((R0 - d / 2) / (d / 2), 9);
+    expect(m.aspectRatioRing).toBe('A');
     expect(m.units).toBe('mm');
     expect(m.linking).toEqual([[0, 0], [0, 0]]);
     expect(m.unheld).toEqual(['A', 'B']);
