@@ -4,6 +4,7 @@
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
 import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
+import { weightFigure } from '../reports/summary.js';
 import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
@@ -147,7 +148,7 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   const w = p.weight;
   if (w) {
     lines.push(
-      `Weight: ${num(w.grams)} g per ${w.per} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
+      `Weight: ${weightFigure(w).value} ${weightFigure(w).unit} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
         `inner diameter ${num(w.innerDiameterMm)} mm (${w.scale}); density ${w.density.gramsPerCm3} g/cm3${w.density.material ? ` (${w.density.material})` : ''}, ${w.density.source}`,
     );
   }

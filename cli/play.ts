@@ -22,9 +22,22 @@ export function register(program: Command, io: Io): void {
       const report = await analyzePlay(result, {
         ...(tube !== undefined ? { tube } : {}),
         ...(cap !== undefined ? { translationCap: cap } : {}),
+        onProgress: progressLines(io),
       });
       emit(io, opts.json === true, report, () => formatPlay(report, file));
     });
+}
+
+/** Progress lines on stderr, once the run has taken more than a second (quick runs stay quiet), at most 4 a second. */
+export function progressLines(io: Io, now: () => number = () => performance.now()): (stage: string) => void {
+  const t0 = now();
+  let last = -Infinity;
+  return (stage) => {
+    const t = now();
+    if (t - t0 < 1000 || t - last < 250) return;
+    last = t;
+    io.err(`play: ${stage} (${((t - t0) / 1000).toFixed(1)} s)`);
+  };
 }
 
 /** Human-readable report; lengths carry the result's units, angles degrees. */

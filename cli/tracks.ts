@@ -3,6 +3,7 @@
 import { resolve } from 'node:path';
 import type { Command } from 'commander';
 import { buildTracks, DEFAULT_SAMPLES, MAX_SAMPLES, MIN_SAMPLES, parseRatio, type TracksDocument } from '../src/fabricate/tracks.js';
+import { finiteView } from '../src/fabricate/repeat.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
 import { writeFileAtomic } from './files.js';
@@ -40,8 +41,11 @@ function run(resultPath: string, flags: TracksFlags, io: Io): void {
   if (!/^\s*\d+\s*$/.test(samplesText)) {
     throw new InputError(`--samples '${samplesText}' must be a whole number from ${MIN_SAMPLES} to ${MAX_SAMPLES}`);
   }
-  const result = readResultFile(resultPath);
+  // A weave cell lists contacts with copies of its rings in other cells: track them on a block of cells.
+  const view = finiteView(readResultFile(resultPath));
+  const result = view.result;
   const doc = buildTracks(result, { ratio, samples, source: resultPath });
+  if (view.repeats !== null) io.err(`tracks: weave cell of ${resultPath} expanded into a block of ${view.repeats} cells per lattice direction (${result.rings.length} rings; ring A[s] is ring A of cell s)`);
   const text = JSON.stringify(doc);
   writeFileAtomic(flags.output, text);
   emit(io, flags.json === true, summary(doc, flags.output, text.length), () => toText(doc, flags.output!, text.length));
