@@ -11,10 +11,10 @@ export function register(program: Command, io: Io): void {
   program
     .command('play')
     .description('Locked or rattling? Free motions of the rings at their contacts, the second-order test, and each ring\'s play.')
-    .argument('<result>', 'result JSON file (format thickring-result/1, from inflate or compare -o)')
-    .option('--tube <r>', 'common tube radius to analyse, layout units (default: the result\'s own); e.g. the printed wire after clearance')
-    .option('--cap <n>', 'largest translation searched per direction, layout units (default: 4 x the largest core radius)')
-    .option('--json', 'print one JSON object instead of text')
+    .argument('<result>', 'Result file (format thickring-result/1, from inflate or compare -o); a weave cell or a block of cells is analysed with its lattice.')
+    .option('--tube <r>', 'Common tube radius to analyse, in the result\'s units (default: the result\'s own), for example the printed wire after clearance.')
+    .option('--cap <n>', 'Largest translation searched per direction, in the result\'s units (default: 4 times the largest core radius).')
+    .option('--json', 'Print one JSON object instead of text.')
     .action(async (file: string, opts: { tube?: string; cap?: string; json?: boolean }) => {
       const result = readResultFile(file);
       const tube = opts.tube === undefined ? undefined : positive(opts.tube, '--tube', 'a tube radius in layout units, e.g. --tube 0.3');
