@@ -6,6 +6,7 @@
 // Kusner, Sullivan, Wrinkle, Geom. Topol. 10 (2006), criticality is relative to the admissible variations).
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
+import { Ajv2020 } from 'ajv/dist/2020.js';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { main } from '../cli/main.js';
 import { measureLayout } from '../src/analyze/measure.js';
@@ -80,6 +81,17 @@ describe.each(cases)('$spec under $symmetry', ({ spec, symmetry, pairs }) => {
     // play finds the active struts from the geometry itself; the result must list at least as many.
     expect(result.contacts.length).toBeGreaterThanOrEqual(p.mobility.activeContacts);
   }, 120_000);
+
+  it('the file still matches the result schema, with aspectRatioRing and optimality', () => {
+    const schema = JSON.parse(readFileSync(new URL('../schemas/result.schema.json', import.meta.url), 'utf8')) as object;
+    const validate = new Ajv2020({ allErrors: true }).compile(schema);
+    expect(validate(result), JSON.stringify(validate.errors)).toBe(true);
+    // The headline is the smallest aspect ratio over the rings (design contract), and it names that ring.
+    const smallest = Math.min(...result.rings.map((r) => (r.radius - r.tube) / r.tube));
+    expect(result.aspectRatio).toBeCloseTo(smallest, 12);
+    const named = result.rings.find((r) => r.name === result.aspectRatioRing)!;
+    expect((named.radius - named.tube) / named.tube).toBeCloseTo(smallest, 12);
+  });
 
   it('a local certificate names the symmetry it holds under, in text and JSON', () => {
     if (result.certificate.certified && !(result.bound && result.bound.gap <= 1e-9)) {
