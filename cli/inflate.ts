@@ -154,7 +154,12 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   }
   const rep = (p as { repeats?: number[] }).repeats;
   if (rep) lines.push(`Rings listed: a block of ${rep.join(' x ')} cells (--repeats); ring A[i] is ring A of cell i`);
-  else if (p.contactShifts.some((s) => s.some((x) => x !== 0))) lines.push('Contacts with B[s] touch the copy of ring B shifted by s lattice vectors');
+  else {
+    // Name a ring of this weave that really has a contact with a shifted copy.
+    const k = p.contactShifts.findIndex((s) => s.some((x) => x !== 0));
+    const name = k >= 0 ? r.rings[r.contacts[k]?.b ?? 0]?.name : undefined;
+    if (name !== undefined) lines.push(`Contacts with ${name}[s] touch the copy of ring ${name} shifted by s lattice vectors`);
+  }
   return lines;
 }
 
