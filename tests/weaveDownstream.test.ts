@@ -3,7 +3,7 @@
 // (rings per area = cell rings / |a1 x a2|, elementary lattice geometry); tracks never pair a ring with
 // itself; play on a block sees the block's own copies (no overlap); European 4-in-1 locks at its optimum
 // (the weave is held by its neighbours at the minimum aspect ratio: common practice, no source).
-import { readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { main } from '../cli/main.js';
@@ -59,6 +59,20 @@ describe('weave results downstream', () => {
       expect(p.mobility.activeContacts).toBeGreaterThan(0);
       expect(p.locked).toBe(true);
     }
+  }, 120_000);
+
+  it('notes name rings that exist in that weave, and any document the text cites exists', async () => {
+    const io = captureIo();
+    const out = join(dir, 'box.json');
+    expect(await main(['inflate', 'weave:box', '--starts', '1', '--workers', '1', '-o', out], io)).toBe(0);
+    const text = io.stdout.join('\n');
+    const names = (JSON.parse(readFileSync(out, 'utf8')) as { rings: { name: string }[] }).rings.map((r) => r.name);
+    for (const m of text.matchAll(/Contacts with (\w+)\[s\] touch the copy of ring (\w+)/g)) {
+      expect(names).toContain(m[1]);
+      expect(names).toContain(m[2]);
+    }
+    for (const m of text.matchAll(/\b(docs\/[\w.-]+\.md)\b/g)) expect(existsSync(new URL(`../${m[1]}`, import.meta.url)), m[1]).toBe(true);
+    expect(text).toMatch(/docs\/references\.md/);
   }, 120_000);
 
   it('play progress: silent in the first second, then at most four lines a second', () => {
