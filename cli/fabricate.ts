@@ -186,6 +186,7 @@ function toJson(source: string, out: FabricateOutput, written: { format: MeshFor
       springBack: p.springBack,
       sizes: p.wire,
     },
+    touchingPairs: out.touchingPairs,
     weave: weaveOf(out),
     mesh: out.mesh,
     files: written,
@@ -208,6 +209,7 @@ function toText(source: string, out: FabricateOutput, written: { format: MeshFor
   const L: string[] = [];
   L.push(`fabricate ${source} for ${pr.label} (result status: ${p.status})`);
   if (out.weave) L.push(`weave cell: ${out.weave.kind}, ${out.weave.cellRings} rings per cell; sizes below are of the cell's rings`);
+  if (out.touchingPairs.length > 0) L.push(`touching at the optimum: ${listNames(out.touchingPairs)}`);
   const by = p.size.kind === 'wire'
     ? `--wire ${wire?.gauge ? `${wire.gauge.label} (${f(p.size.value)} mm)` : `${f(p.size.value)} mm`} on ring ${sized.name} (the thickest wire)`
     : p.size.kind === 'mandrel'

@@ -75,6 +75,11 @@ describe.each(cases)('$spec under $symmetry', ({ spec, symmetry, pairs }) => {
     const listed = Number(/(\d+) active contacts \(struts\)/.exec(page)![1]);
     expect(listed).toBe(result.contacts.length);
 
+    const fab = captureIo();
+    expect(await main(['fabricate', path, '--outer-diameter', '30', '--process', 'sla', '--json'], fab)).toBe(0);
+    const pairsOf = (names: string[]) => names.map((n) => n.split('-').map((x) => result.rings.findIndex((r) => r.name === x)).sort().join('-')).sort();
+    expect(pairsOf((JSON.parse(fab.stdout.join('')) as { touchingPairs: string[] }).touchingPairs)).toEqual(touching);
+
     const play = captureIo();
     expect(await main(['play', path, '--json'], play)).toBe(0);
     const p = JSON.parse(play.stdout.join('')) as { mobility: { activeContacts: number } };

@@ -32,6 +32,8 @@ export interface FabricateOutput {
   /** Encoded files by format (not yet written). */
   files: Partial<Record<MeshFormat, Uint8Array>>;
   presetNote: string;
+  /** Ring pairs that touch at the optimum (from the result's contacts), "A-B"; a copy in another cell as "A-B[0,1]". */
+  touchingPairs: string[];
   /** A weave cell result: what the sizes are of (null for a finite link or a block of cells). */
   weave: WeaveSummary | null;
   cautions: readonly string[];
@@ -80,7 +82,7 @@ export function fabricate(result: SolveResult, options: FabricateOptions): Fabri
       files[f] = f === 'stl' ? encodeStl(bodies) : f === 'obj' ? new TextEncoder().encode(encodeObj(bodies)) : encode3mf(bodies);
     }
   }
-  return { plan, mesh, files, presetNote: PRESET_NOTE, weave: weaveSummary(result), cautions: CAUTIONS, warnings };
+  return { plan, mesh, files, presetNote: PRESET_NOTE, touchingPairs: touchingPairs(result), weave: weaveSummary(result), cautions: CAUTIONS, warnings };
 }
 
 // The plan already puts the exact tori on the plate; facets sit inside the surface by up to the chord, so the
@@ -89,6 +91,18 @@ function dropOnPlate(bodies: MeshBody[]): void {
   let low = Infinity;
   for (const b of bodies) for (let i = 2; i < b.positions.length; i += 3) low = Math.min(low, b.positions[i]!);
   for (const b of bodies) for (let i = 2; i < b.positions.length; i += 3) b.positions[i] = b.positions[i]! - low;
+}
+
+function touchingPairs(result: SolveResult): string[] {
+  const shifts = (result as { periodic?: { contactShifts?: number[][] } }).periodic?.contactShifts;
+  const out = new Set<string>();
+  result.contacts.forEach((c, k) => {
+    const sh = shifts?.[k];
+    const shifted = sh !== undefined && sh.some((x) => x !== 0);
+    const [a, b] = !shifted && c.b < c.a ? [c.b, c.a] : [c.a, c.b];
+    out.add(`${result.rings[a]!.name}-${result.rings[b]!.name}${shifted ? `[${sh.join(',')}]` : ''}`);
+  });
+  return [...out];
 }
 
 function weaveSummary(result: SolveResult): WeaveSummary | null {
