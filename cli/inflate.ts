@@ -69,7 +69,7 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io, 
     linking: resolved.linking,
     symmetry,
   };
-  const progress = progressReporter(io, options.starts);
+  const progress = progressReporter(io, options.starts, layout.units ?? undefined);
   let result: SolveResult;
   try {
     result = await runMultistart(problem, {
@@ -264,7 +264,7 @@ const HEARTBEAT_LINE_S = 10;
  * A bar on an interactive stderr (with the latest running start's iteration and tube), else one line per
  * finished start and a "still running" line every HEARTBEAT_LINE_S seconds.
  */
-function progressReporter(io: Io, total: number): Progress {
+function progressReporter(io: Io, total: number, unit = 'layout units'): Progress {
   if (io.interactive) {
     const bar = new cliProgress.SingleBar(
       { format: 'inflate [{bar}] {value}/{total} starts | best tube {best} | {running}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
@@ -287,13 +287,13 @@ function progressReporter(io: Io, total: number): Progress {
       const now = Date.now();
       if (now - lastLine < HEARTBEAT_LINE_S * 1000) return;
       lastLine = now;
-      io.err(`... ${Math.round((now - t0) / 1000)} s: start ${e.start} at iteration ${e.iteration}, tube ${num(e.tube)} (layout units)`);
+      io.err(`... ${Math.round((now - t0) / 1000)} s: start ${e.start} at iteration ${e.iteration}, tube ${num(e.tube)} (${unit})`);
     },
     update: (e) => {
       for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       io.err(
         `start ${e.start} (${e.done}/${e.total}, seed ${e.seed}): ${e.status}, tube ${Number.isNaN(e.tube) ? '-' : num(e.tube)}` +
-          `${e.retries ? `, ${e.retries} worker crash${e.retries > 1 ? 'es' : ''} retried` : ''}; best ${Number.isNaN(e.bestTube) ? '-' : num(e.bestTube)} (layout units)`,
+          `${e.retries ? `, ${e.retries} worker crash${e.retries > 1 ? 'es' : ''} retried` : ''}; best ${Number.isNaN(e.bestTube) ? '-' : num(e.bestTube)} (${unit})`,
       );
     },
     stop: () => {},
