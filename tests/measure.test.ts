@@ -178,12 +178,17 @@ describe('thickring measure (through cli/main with a capturing Io)', () => {
     ['intersecting circles', JSON.stringify(layoutOf([ring('A', [0, 0, 0], [0, 0, 1], 1), ring('B', [1, 0, 0.5], [0, 1, 0], 0.5)])), /ring A and ring B: core circles intersect/],
   ];
   bad.forEach(([what, text, message], k) => {
-    it(`bad input, ${what}: exit 2, one-line message on stderr, nothing on stdout`, async () => {
-      const r = await run(['measure', file(`bad-${k}.json`, text), '--json']);
+    it(`bad input, ${what}: exit 2, one-line message on stderr; with --json one error object on stdout`, async () => {
+      const r = await run(['measure', file(`bad-${k}.json`, text)]);
       expect(r.code).toBe(2);
       expect(r.out).toBe('');
       expect(r.err).toMatch(message);
       expect(r.err.trim().split('\n')).toHaveLength(1);
+      const j = await run(['measure', file(`bad-${k}.json`, text), '--json']);
+      expect(j.code).toBe(2);
+      const o = JSON.parse(j.out) as { error: { message: string; exitCode: number } };
+      expect(o.error.message).toMatch(message);
+      expect(o.error.exitCode).toBe(2);
     });
   });
 
