@@ -196,7 +196,8 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const c = r.certificate;
   lines.push(
     `Certificate: ${c.method}, ${c.certified ? 'certified' : 'NOT certified'}; balance residual ${sci(c.balanceResidual)}, ` +
-      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}`,
+      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}` +
+        (r.symmetry && r.contacts.length > c.activeStruts ? ` (${r.contacts.length} contacts listed with their images under ${r.symmetry.type}:${r.symmetry.order})` : ''),
   );
   if (c.note) lines.push(`  ${c.note}`);
   // The packing bound holds for every arrangement with this linking pattern, so attaining it settles the global

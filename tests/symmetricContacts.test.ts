@@ -102,6 +102,7 @@ describe.each(cases)('$spec under $symmetry', ({ spec, symmetry, pairs }) => {
     if (result.certificate.certified && !(result.bound && result.bound.gap <= 1e-9)) {
       expect(inflateText).toMatch(new RegExp(`certified among poses with ${symmetry} symmetry`));
       expect(result.optimality).toBe(`certified among poses with ${symmetry} symmetry`);
+      expect(inflateText).toMatch(new RegExp(`\\(${result.contacts.length} contacts listed with their images under ${symmetry}\\)`));
     } else {
       expect(result.optimality).not.toMatch(/certified local optimum/);
     }
