@@ -19,24 +19,36 @@ export function register(program: Command, io: Io): void {
       const result = readResultFile(file);
       const tube = opts.tube === undefined ? undefined : positive(opts.tube, '--tube', 'a tube radius in layout units, e.g. --tube 0.3');
       const cap = opts.cap === undefined ? undefined : positive(opts.cap, '--cap', 'a distance in layout units, e.g. --cap 5');
-      const report = await analyzePlay(result, {
-        ...(tube !== undefined ? { tube } : {}),
-        ...(cap !== undefined ? { translationCap: cap } : {}),
-        onProgress: progressLines(io),
-      });
+      const progress = progressLines(io);
+      // Re-say the running stage every second while a long stage (the mobility LPs) keeps the loop free.
+      const ticker = setInterval(() => progress(null), 1000);
+      ticker.unref();
+      let report: PlayReport;
+      try {
+        report = await analyzePlay(result, {
+          ...(tube !== undefined ? { tube } : {}),
+          ...(cap !== undefined ? { translationCap: cap } : {}),
+          onProgress: progress,
+        });
+      } finally {
+        clearInterval(ticker);
+      }
       emit(io, opts.json === true, report, () => formatPlay(report, file));
     });
 }
 
 /** Progress lines on stderr, once the run has taken more than a second (quick runs stay quiet), at most 4 a second. */
-export function progressLines(io: Io, now: () => number = () => performance.now()): (stage: string) => void {
+export function progressLines(io: Io, now: () => number = () => performance.now()): (stage: string | null) => void {
   const t0 = now();
   let last = -Infinity;
+  let current = 'starting';
+  // null: no new stage, only "still running" (said at most once a second).
   return (stage) => {
+    if (stage !== null) current = stage;
     const t = now();
-    if (t - t0 < 1000 || t - last < 250) return;
+    if (t - t0 < 1000 || t - last < (stage === null ? 1000 : 250)) return;
     last = t;
-    io.err(`play: ${stage} (${((t - t0) / 1000).toFixed(1)} s)`);
+    io.err(`play: ${current} (${((t - t0) / 1000).toFixed(1)} s)`);
   };
 }
 

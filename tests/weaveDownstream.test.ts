@@ -86,5 +86,9 @@ describe('weave results downstream', () => {
     t = 1200; tick('d');
     t = 1400; tick('e');
     expect(io.stderr).toEqual(['play: c (1.1 s)', 'play: e (1.4 s)']);
+    // "Still running" ticks repeat the running stage at most once a second.
+    t = 1900; tick(null);
+    t = 2500; tick(null);
+    expect(io.stderr).toEqual(['play: c (1.1 s)', 'play: e (1.4 s)', 'play: e (2.5 s)']);
   });
 });
