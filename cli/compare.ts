@@ -117,8 +117,7 @@ function weaveHeader(r: PeriodicCompareResult): string {
 export function formatCompare(result: CompareResult, output?: string): string {
   const lines = [formatSummary(result)];
   if (output) lines.push('', `Result written to ${output} (draw it with: thickring report ${output} -o report.html)`);
-  lines.push('', 'Cautions:', '- The tube radius is a geometric limit with zero clearance: real rings need clearance (see thickring fabricate).');
-  lines.push(...CAUTIONS.map((c) => `- ${c}`));
+  lines.push('', 'Cautions:', ...CAUTIONS.map((c) => `- ${c}`));
   return lines.join('\n');
 }
 

@@ -3,6 +3,8 @@
 // independent check of the answer.
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
+import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
+import { weightFigure } from '../reports/summary.js';
 import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
@@ -69,7 +71,7 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io, 
     linking: resolved.linking,
     symmetry,
   };
-  const progress = progressReporter(io, options.starts);
+  const progress = progressReporter(io, options.starts, layout.units ?? undefined);
   let result: SolveResult;
   try {
     result = await runMultistart(problem, {
@@ -149,13 +151,18 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   const w = p.weight;
   if (w) {
     lines.push(
-      `Weight: ${num(w.grams)} g per ${w.per} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
+      `Weight: ${weightFigure(w).value} ${weightFigure(w).unit} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
         `inner diameter ${num(w.innerDiameterMm)} mm (${w.scale}); density ${w.density.gramsPerCm3} g/cm3${w.density.material ? ` (${w.density.material})` : ''}, ${w.density.source}`,
     );
   }
   const rep = (p as { repeats?: number[] }).repeats;
   if (rep) lines.push(`Rings listed: a block of ${rep.join(' x ')} cells (--repeats); ring A[i] is ring A of cell i`);
-  else if (p.contactShifts.some((s) => s.some((x) => x !== 0))) lines.push('Contacts with B[s] touch the copy of ring B shifted by s lattice vectors');
+  else {
+    // Name a ring of this weave that really has a contact with a shifted copy.
+    const k = p.contactShifts.findIndex((s) => s.some((x) => x !== 0));
+    const name = k >= 0 ? r.rings[r.contacts[k]?.b ?? 0]?.name : undefined;
+    if (name !== undefined) lines.push(`Contacts with ${name}[s] touch the copy of ring ${name} shifted by s lattice vectors`);
+  }
   return lines;
 }
 
@@ -175,10 +182,10 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const scale = Math.max(...r.rings.map((x) => x.radius));
   const lines: string[] = [];
   lines.push(`thickring inflate ${r.spec}: ${r.rings.length} rings, lengths in ${u}`);
-  lines.push(`Status: ${r.status}; ${optimalityText(optimalityOf(r))}`);
+  lines.push(`Status: ${r.status}; ${optimalityText(optimalityOf(r), r.symmetry)}`);
   lines.push(`Tube radius: ${L(r.tube)} (wire diameter ${L(2 * r.tube)})`);
   lines.push(`Tube / smallest core radius: ${num(r.tubeOverCore)} (dimensionless)`);
-  lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(r.aspectRatio)} (dimensionless)`);
+  lines.push(`Aspect ratio (inner diameter / wire diameter), smallest over the rings${r.aspectRatioRing ? `, ring ${r.aspectRatioRing}` : ''}: ${num(r.aspectRatio)} (dimensionless)`);
   if ('periodic' in r) lines.push(...weaveLines(r as PeriodicSolveResult, u));
   if (r.symmetry) lines.push(`Symmetry imposed: ${r.symmetry.type}:${r.symmetry.order} about axis [${r.symmetry.axis.join(', ')}] through [${r.symmetry.origin.join(', ')}]`);
   else lines.push('Symmetry imposed: none');
@@ -192,7 +199,8 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const c = r.certificate;
   lines.push(
     `Certificate: ${c.method}, ${c.certified ? 'certified' : 'NOT certified'}; balance residual ${sci(c.balanceResidual)}, ` +
-      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}`,
+      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}` +
+        (r.symmetry && r.contacts.length > c.activeStruts ? ` (${r.contacts.length} contacts listed with their images under ${r.symmetry.type}:${r.symmetry.order})` : ''),
   );
   if (c.note) lines.push(`  ${c.note}`);
   // The packing bound holds for every arrangement with this linking pattern, so attaining it settles the global
@@ -241,10 +249,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   lines.push(`Elapsed: ${r.elapsedSeconds.toFixed(2)} s`);
   if (output) lines.push(`Result written to ${output}`);
   lines.push('');
-  lines.push('Cautions:');
-  lines.push('- The tube radius is a geometric limit with zero clearance: real rings need clearance (see thickring fabricate).');
-  lines.push('- Geometry says nothing about strength: do not use these figures for load-bearing, lifting or climbing chain.');
-  lines.push('- Small rings are a choking hazard for children; for skin contact use skin-safe (e.g. nickel-free) materials.');
+  lines.push(CAUTION_TEXT);
   return lines.join('\n');
 }
 
@@ -264,7 +269,7 @@ const HEARTBEAT_LINE_S = 10;
  * A bar on an interactive stderr (with the latest running start's iteration and tube), else one line per
  * finished start and a "still running" line every HEARTBEAT_LINE_S seconds.
  */
-function progressReporter(io: Io, total: number): Progress {
+function progressReporter(io: Io, total: number, unit = 'layout units'): Progress {
   if (io.interactive) {
     const bar = new cliProgress.SingleBar(
       { format: 'inflate [{bar}] {value}/{total} starts | {duration_formatted} elapsed | best tube {best} | {running}', stream: process.stderr, clearOnComplete: true, hideCursor: true },
@@ -287,13 +292,13 @@ function progressReporter(io: Io, total: number): Progress {
       const now = Date.now();
       if (now - lastLine < HEARTBEAT_LINE_S * 1000) return;
       lastLine = now;
-      io.err(`... ${Math.round((now - t0) / 1000)} s: start ${e.start} at iteration ${e.iteration}, tube ${num(e.tube)} (layout units)`);
+      io.err(`... ${Math.round((now - t0) / 1000)} s: start ${e.start} at iteration ${e.iteration}, tube ${num(e.tube)} (${unit})`);
     },
     update: (e) => {
       for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       io.err(
         `start ${e.start} (${e.done}/${e.total}, seed ${e.seed}) after ${Math.round((Date.now() - t0) / 1000)} s: ${e.status}, tube ${Number.isNaN(e.tube) ? '-' : num(e.tube)}` +
-          `${e.retries ? `, ${e.retries} worker crash${e.retries > 1 ? 'es' : ''} retried` : ''}; best ${Number.isNaN(e.bestTube) ? '-' : num(e.bestTube)} (layout units)`,
+          `${e.retries ? `, ${e.retries} worker crash${e.retries > 1 ? 'es' : ''} retried` : ''}; best ${Number.isNaN(e.bestTube) ? '-' : num(e.bestTube)} (${unit})`,
       );
     },
     stop: () => {},

@@ -29,18 +29,47 @@ export function buildProgram(io: Io): Command {
 }
 
 export async function main(argv: string[], io: Io = processIo): Promise<number> {
+  // With --json every outcome is one JSON object on stdout, errors included: commander's own messages are held back.
+  const json = argv.includes('--json') && !argv.includes('--help') && !argv.includes('-h');
+  let commanderMessage = '';
   const program = buildProgram(io);
+  if (json) {
+    const out = { writeOut: (s: string) => io.out(s), writeErr: (s: string) => { commanderMessage += s; } };
+    program.configureOutput(out);
+    for (const c of program.commands) c.configureOutput(out);
+  }
   try {
     await program.parseAsync(argv, { from: 'user' });
     return 0;
   } catch (e) {
-    if (e instanceof CommanderError) return e.exitCode === 0 ? 0 : 2;
+    if (e instanceof CommanderError) {
+      if (e.exitCode === 0) return 0;
+      if (json) jsonError(io, (e.message || commanderMessage).replace(/^error: /, '').trim(), optionIn(e.message), 2);
+      return 2;
+    }
     if (isInputError(e)) {
-      io.err(`thickring: ${safeLine(e.message)}`);
+      if (json) jsonError(io, e.message, fieldOf(e), 2);
+      else io.err(`thickring: ${safeLine(e.message)}`);
       return 2;
     }
     const msg = e instanceof Error ? e.message : String(e);
-    io.err(`thickring: computation failed: ${safeLine(msg)}`);
+    if (json) jsonError(io, `computation failed: ${msg}`, null, 1);
+    else io.err(`thickring: computation failed: ${safeLine(msg)}`);
     return 1;
   }
+}
+
+function jsonError(io: Io, message: string, field: string | null, exitCode: number): void {
+  io.out(JSON.stringify({ error: { message, field, exitCode } }));
+}
+
+// The field an input error is about: its own `field` when it names one, else the option or file the message starts with.
+function fieldOf(e: Error): string | null {
+  const own = (e as { field?: unknown }).field;
+  if (typeof own === 'string') return own;
+  return optionIn(e.message) ?? (/^(result file|layout|tracks file) '[^']*'/.exec(e.message)?.[0] ?? null);
+}
+
+function optionIn(message: string): string | null {
+  return /(^|\s|')(--?[a-z][\w-]*)/.exec(message)?.[2] ?? null;
 }

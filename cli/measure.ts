@@ -29,7 +29,7 @@ export function formatMeasure(m: MeasureResult, file: string): string {
     ...m.limitedBy.pairs.map((p) => `pair ${dn(p.a)}-${dn(p.b)}${p.shift ? ` shifted [${p.shift.join(', ')}]` : ''} (tubes touch)`),
   ];
   lines.push(`Limited by: ${lim.join('; ')}`);
-  lines.push(`Aspect ratio of the thinnest-walled ring (inner diameter / wire diameter): ${num(m.aspectRatio)} (dimensionless)`);
+  lines.push(`Aspect ratio (inner diameter / wire diameter), smallest over the rings, ring ${m.aspectRatioRing}: ${num(m.aspectRatio)} (dimensionless)`);
   if (m.given) {
     lines.push(`Largest tube given in the layout: ${L(m.given.tube)}, ${m.given.fits ? 'fits' : 'does NOT fit'} (allowed ${L(m.tube)})`);
   }

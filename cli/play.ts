@@ -2,6 +2,7 @@
 // the second-order test at a claimed optimum, and how far each ring can move on its own.
 import type { Command } from 'commander';
 import { analyzePlay, fmt, type PlayReport } from '../src/analyze/play.js';
+import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
 import { emit, type Io } from './io.js';
@@ -10,20 +11,45 @@ export function register(program: Command, io: Io): void {
   program
     .command('play')
     .description('Locked or rattling? Free motions of the rings at their contacts, the second-order test, and each ring\'s play.')
-    .argument('<result>', 'result JSON file (format thickring-result/1, from inflate or compare -o)')
-    .option('--tube <r>', 'common tube radius to analyse, layout units (default: the result\'s own); e.g. the printed wire after clearance')
-    .option('--cap <n>', 'largest translation searched per direction, layout units (default: 4 x the largest core radius)')
-    .option('--json', 'print one JSON object instead of text')
+    .argument('<result>', 'Result file (format thickring-result/1, from inflate or compare -o); a weave cell or a block of cells is analysed with its lattice.')
+    .option('--tube <r>', 'Common tube radius to analyse, in the result\'s units (default: the result\'s own), for example the printed wire after clearance.')
+    .option('--cap <n>', 'Largest translation searched per direction, in the result\'s units (default: 4 times the largest core radius).')
+    .option('--json', 'Print one JSON object instead of text.')
     .action(async (file: string, opts: { tube?: string; cap?: string; json?: boolean }) => {
       const result = readResultFile(file);
       const tube = opts.tube === undefined ? undefined : positive(opts.tube, '--tube', 'a tube radius in layout units, e.g. --tube 0.3');
       const cap = opts.cap === undefined ? undefined : positive(opts.cap, '--cap', 'a distance in layout units, e.g. --cap 5');
-      const report = await analyzePlay(result, {
-        ...(tube !== undefined ? { tube } : {}),
-        ...(cap !== undefined ? { translationCap: cap } : {}),
-      });
+      const progress = progressLines(io);
+      // Re-say the running stage every second while a long stage (the mobility LPs) keeps the loop free.
+      const ticker = setInterval(() => progress(null), 1000);
+      ticker.unref();
+      let report: PlayReport;
+      try {
+        report = await analyzePlay(result, {
+          ...(tube !== undefined ? { tube } : {}),
+          ...(cap !== undefined ? { translationCap: cap } : {}),
+          onProgress: progress,
+        });
+      } finally {
+        clearInterval(ticker);
+      }
       emit(io, opts.json === true, report, () => formatPlay(report, file));
     });
+}
+
+/** Progress lines on stderr, once the run has taken more than a second (quick runs stay quiet), at most 4 a second. */
+export function progressLines(io: Io, now: () => number = () => performance.now()): (stage: string | null) => void {
+  const t0 = now();
+  let last = -Infinity;
+  let current = 'starting';
+  // null: no new stage, only "still running" (said at most once a second).
+  return (stage) => {
+    if (stage !== null) current = stage;
+    const t = now();
+    if (t - t0 < 1000 || t - last < (stage === null ? 1000 : 250)) return;
+    last = t;
+    io.err(`play: ${current} (${((t - t0) / 1000).toFixed(1)} s)`);
+  };
 }
 
 /** Human-readable report; lengths carry the result's units, angles degrees. */
@@ -61,8 +87,8 @@ export function formatPlay(r: PlayReport, file: string): string {
   ]);
   lines.push(table(head, rows));
   for (const n of r.notes) lines.push(`Note: ${n}`);
-  lines.push('Caution: play is geometric, for perfectly round rings of exact size; printed or bent rings shrink, sag and spring back.');
-  lines.push('Caution: rings that rattle can pinch skin or hair, and small loose parts are a choking hazard: keep them from children.');
+  lines.push('Play is geometric, for perfectly round rings of exact size; printed or bent rings shrink, sag and spring back, and rings that rattle can pinch skin or hair.');
+  lines.push(CAUTION_TEXT);
   return lines.join('\n');
 }
 

@@ -29,10 +29,10 @@ export function register(program: Command, io: Io): void {
   program
     .command('report')
     .description('Write a standalone HTML report (works offline) of a result file from inflate or compare.')
-    .argument('<result>', 'result JSON file (format thickring-result/1, from inflate -o or compare -o)')
-    .option('-o, --output <file>', 'the HTML file to write (required), e.g. -o report.html')
-    .option('--no-play', 'leave out the play analysis (locked or rattling?)')
-    .option('--json', 'print one JSON object describing the report instead of text')
+    .argument('<result>', 'Result file (format thickring-result/1, from inflate -o or compare -o), rings or a weave cell.')
+    .option('-o, --output <file>', 'The HTML file to write (required), for example -o report.html.')
+    .option('--no-play', 'Leave out the play analysis (locked or rattling?).')
+    .option('--json', 'Print one JSON object describing the report instead of text.')
     .action(async (file: string, opts: { output?: string; play: boolean; json?: boolean }) => {
       const summary = await runReport(file, { output: opts.output, play: opts.play });
       emit(io, opts.json === true, summary, () => formatReportSummary(summary));

@@ -3,6 +3,7 @@
 import { resolve } from 'node:path';
 import type { Command } from 'commander';
 import { buildTracks, DEFAULT_SAMPLES, MAX_SAMPLES, MIN_SAMPLES, parseRatio, type TracksDocument } from '../src/fabricate/tracks.js';
+import { finiteView } from '../src/fabricate/repeat.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
 import { writeFileAtomic } from './files.js';
@@ -18,12 +19,12 @@ interface TracksFlags {
 export function register(program: Command, io: Io): void {
   program
     .command('tracks')
-    .description('contact points, contact tracks and relative screw motions of touching or linked rings (input for gear/groove design)')
-    .argument('<result>', 'result file (format thickring-result/1)')
-    .option('-o, --output <file>', 'tracks file to write (JSON, format thickring-tracks/1)')
-    .option('--ratio <a:b>', 'turns of the first ring of each pair : turns of the second per period', '1:1')
-    .option('--samples <n>', `samples per curve and per period (${MIN_SAMPLES}-${MAX_SAMPLES})`, String(DEFAULT_SAMPLES))
-    .option('--json', 'print one JSON summary object')
+    .description('Write the contact points, contact tracks and relative screw motions of touching or linked rings, as input for gear or groove design.')
+    .argument('<result>', 'Result file (format thickring-result/1); a weave cell is tracked on a block of 3 cells per direction.')
+    .option('-o, --output <file>', 'Tracks file to write (JSON, format thickring-tracks/1).')
+    .option('--ratio <a:b>', 'Turns of the first ring of each pair to turns of the second, per period (default 1:1).')
+    .option('--samples <n>', `Samples per curve and per period, ${MIN_SAMPLES} to ${MAX_SAMPLES} (default ${DEFAULT_SAMPLES}).`)
+    .option('--json', 'Print one JSON summary object.')
     .action((resultPath: string, flags: TracksFlags) => {
       run(resultPath, flags, io);
     });
@@ -40,8 +41,11 @@ function run(resultPath: string, flags: TracksFlags, io: Io): void {
   if (!/^\s*\d+\s*$/.test(samplesText)) {
     throw new InputError(`--samples '${samplesText}' must be a whole number from ${MIN_SAMPLES} to ${MAX_SAMPLES}`);
   }
-  const result = readResultFile(resultPath);
+  // A weave cell lists contacts with copies of its rings in other cells: track them on a block of cells.
+  const view = finiteView(readResultFile(resultPath));
+  const result = view.result;
   const doc = buildTracks(result, { ratio, samples, source: resultPath });
+  if (view.repeats !== null) io.err(`tracks: weave cell of ${resultPath} expanded into a block of ${view.repeats} cells per lattice direction (${result.rings.length} rings; ring A[s] is ring A of cell s)`);
   const text = JSON.stringify(doc);
   writeFileAtomic(flags.output, text);
   emit(io, flags.json === true, summary(doc, flags.output, text.length), () => toText(doc, flags.output!, text.length));
@@ -95,10 +99,10 @@ function toText(doc: TracksDocument, output: string, bytes: number): string {
       const link = n.linking === null ? '' : n.linking !== 0 ? ', linked' : ', not linked';
       L.push(`ring ${r.name} / ${n.name}${link}: ${n.contacts.length} contact point(s) on ${n.tracks.length} track circle(s)`);
       for (const c of n.contacts.slice(0, 6)) {
-        L.push(`    contact at core angle ${deg(c.coreAngle)} deg, tube angle ${deg(c.tubeAngle)} deg, gap ${g(c.gap)} ${u}${c.continuum ? ' (one of a continuum)' : ''}`);
+        L.push(`    contact at core angle ${deg(c.coreAngle)} deg, tube angle ${deg(c.tubeAngle)} deg, gap ${g(c.gap, doc.tube)} ${u}${c.continuum ? ' (one of a continuum)' : ''}`);
       }
       if (n.contacts.length > 6) L.push(`    ... ${n.contacts.length - 6} more in the file`);
-      const axes = `shaft angle ${deg(m.shaftAngle)} deg, axis offset ${g(m.axisOffset)} ${u}`;
+      const axes = `shaft angle ${deg(m.shaftAngle)} deg, axis offset ${g(m.axisOffset, r.radius)} ${u}`;
       if (m.kind === 'identity') L.push(`    relative motion: none (identity); ${axes}`);
       else if (m.kind === 'translation') L.push(`    relative motion: circular translation, no turning (dimensionless speed ratio 1:1); ${axes}`);
       else {
@@ -113,10 +117,17 @@ function toText(doc: TracksDocument, output: string, bytes: number): string {
   return L.join('\n');
 }
 
-function deg(rad: number): string {
-  return (rad * 180 / Math.PI).toFixed(2);
+/** Relative size below which a length is rounding noise (a gap of 3e-16 at a tube of 0.3 is a touch). */
+const DISPLAY_ZERO_REL = 1e-9;
+
+// Angles to 0.1 degree; -0.0 shown as 0.0.
+export function deg(rad: number): string {
+  const d = Number((rad * 180 / Math.PI).toFixed(1));
+  return (d === 0 ? 0 : d).toFixed(1);
 }
 
-function g(x: number): string {
+// Five significant figures; a value below 1e-9 of the scale it belongs to is shown as 0.
+export function g(x: number, scale = 0): string {
+  if (Math.abs(x) <= DISPLAY_ZERO_REL * Math.abs(scale)) return '0';
   return Number(x.toPrecision(5)).toString();
 }

@@ -42,7 +42,12 @@ export function signed(x: number | null | undefined, unit: string, digits = 4): 
   return `${x > 0 ? '+' : ''}${v} ${unit}`;
 }
 
-/** A point as "(x, y, z)". */
+/** Components below this fraction of a vector's largest are rounding noise (8.9e-17 beside 0.5 is 0). */
+export const DISPLAY_ZERO_REL = 1e-12;
+
+/** A point as "(x, y, z)"; rounding noise shown as 0. */
 export function vec(v: ArrayLike<number>, digits = 4): string {
-  return `(${num(v[0], digits)}, ${num(v[1], digits)}, ${num(v[2], digits)})`;
+  const big = Math.max(Math.abs(v[0] ?? 0), Math.abs(v[1] ?? 0), Math.abs(v[2] ?? 0));
+  const c = (x: number | undefined) => num(x !== undefined && Math.abs(x) <= DISPLAY_ZERO_REL * big ? 0 : x, digits);
+  return `(${c(v[0])}, ${c(v[1])}, ${c(v[2])})`;
 }

@@ -116,7 +116,7 @@ export function buildReportHtml(result: SolveResult | CompareResult, options: Re
     body: checksBlock(compare ? [['symmetric', compare.symmetric], ['broken', compare.broken]] : [['', result]]) +
       (compare ? comparisonChecks(compare) : ''),
   });
-  sections.push({ title: 'Before you make it', lead: '', body: cautions() });
+  sections.push({ title: 'Cautions', lead: '', body: cautions() });
 
   const html = page(result, compare, sections, plots, options);
   return { html, plots: plots.map((p) => p.id), sections: sections.map((s) => s.title) };
@@ -196,14 +196,14 @@ function cards(result: SolveResult, compare: CompareResult | null): string {
   const list = [
     card('tube radius', num(result.tube), unit),
     card('tube / core', num(result.tubeOverCore, 4), DIMENSIONLESS),
-    card('aspect ratio', num(result.aspectRatio, 4), 'inner / wire diameter, dimensionless'),
+    card('aspect ratio', num(result.aspectRatio, 4), `inner / wire diameter, smallest over the rings${result.aspectRatioRing ? ` (ring ${result.aspectRatioRing})` : ''}, dimensionless`),
   ];
   if (compare) {
     list.push(card('symmetry gain', num(compare.gain, 4), `${unit} (${num(compare.gainPercent, 3)} %)`));
   }
   list.push(card('gap to bound', result.bound ? percent(result.bound.gap) : 'n/a',
     result.bound ? `bound ${num(result.bound.tube)} ${unit}` : 'no bound for this layout'));
-  list.push(card('status', result.status, optimalityText(optimalityOf(result))));
+  list.push(card('status', result.status, optimalityText(optimalityOf(result), result.symmetry)));
   return `<div class="cards">${list.join('')}</div>`;
 }
 
@@ -305,10 +305,6 @@ function comparisonChecks(c: CompareResult): string {
 }
 
 function cautions(): string {
-  const items = [
-    'These are geometric figures for perfectly round, rigid rings at exact poses, touching with zero clearance. ' +
-      'Wire springs back, prints shrink and sag, and plating adds thickness: leave clearance (thickring fabricate adds it per process).',
-    ...CAUTIONS,
-  ];
+  const items = CAUTIONS;
   return `<ul class="cautions">${items.map((t) => `<li>${h(t)}</li>`).join('')}</ul>`;
 }

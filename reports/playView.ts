@@ -34,7 +34,8 @@ export function playView(p: PlayReport): PlayView {
       if (es.length === 0) continue;
       const lo = es.reduce((m, e) => (e.amount < m.amount ? e : m));
       const hi = es.reduce((m, e) => (e.amount > m.amount ? e : m));
-      const amount = (e: typeof lo): string => `${e.capped ? '> ' : ''}${num(e.amount, 4)}`;
+      // Angles to 0.1 degree; lengths to 4 significant figures.
+      const amount = (e: typeof lo): string => `${e.capped ? '> ' : ''}${kind === 'rotate' ? e.amount.toFixed(1) : num(e.amount, 4)}`;
       rows.push({
         label: `ring ${ring.name}: ${what} (least ${lo.direction}${lo.touches ? ` until it meets ${lo.touches}` : ''}; most ${hi.direction})`,
         value: `${amount(lo)} … ${amount(hi)}`,

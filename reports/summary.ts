@@ -1,5 +1,6 @@
 // Plain-text terminal summary of a result (inflate or compare), same figures as the HTML report.
 import { displayName } from '../src/model/displayName.js';
+import type { WeaveWeight } from '../src/model/periodicMaterials.js';
 import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, signed, withUnit } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
@@ -14,20 +15,67 @@ export function figureRows(r: SolveResult): [string, string, string][] {
   const okStarts = r.starts.filter((s) => s.status === 'optimal').length;
   return [
     ['status', r.status, ''],
-    ['optimality', optimalityText(optimalityOf(r)), ''],
+    ['optimality', optimalityText(optimalityOf(r), r.symmetry), ''],
     ['tube radius r', num(r.tube), unit],
     ['tube / smallest core radius', num(r.tubeOverCore), DIMENSIONLESS],
-    ['aspect ratio (inner diam. / wire diam.)', num(r.aspectRatio, 4), DIMENSIONLESS],
+    ['aspect ratio (inner diam. / wire diam.)', num(r.aspectRatio, 4) + (r.aspectRatioRing ? ` (smallest, ring ${r.aspectRatioRing})` : ''), DIMENSIONLESS],
     ['packing bound on r', r.bound ? num(r.bound.tube) : 'none', r.bound ? unit : ''],
     ['gap to bound', r.bound ? percent(r.bound.gap) : 'n/a', ''],
     ['certificate balance residual', num(r.certificate.balanceResidual, 3), DIMENSIONLESS],
     ['max constraint violation / r', num(r.certificate.maxViolation, 3), DIMENSIONLESS],
-    ['active struts', String(r.certificate.activeStruts), 'count'],
+    ['active struts', r.symmetry && r.contacts.length !== r.certificate.activeStruts
+      ? `${r.contacts.length} (${r.certificate.activeStruts} up to ${symmetryLabel(r.symmetry)} symmetry)` : String(r.certificate.activeStruts), 'count'],
     ['independent check', r.verification.ok ? 'passed' : 'FAILED', ''],
     ['min clearance / r (independent check)', num(r.verification.minClearance, 3), DIMENSIONLESS],
     ['starts (optimal / all)', `${okStarts} / ${r.starts.length}`, 'count'],
     ['elapsed', num(r.elapsedSeconds, 3), 'seconds'],
+    ...weaveRows(r),
   ];
+}
+
+interface WeaveFigures {
+  kind: string;
+  cellRings: number;
+  periodLength?: number;
+  cellArea?: number;
+  ringsPerUnitLength?: number;
+  ringsPerUnitArea?: number;
+  weight?: WeaveWeight | null;
+  repeats?: number[];
+}
+
+/** A weave result: lattice, density of rings, the minimum aspect ratio and the weight, as figure rows. */
+export function weaveRows(r: SolveResult): [string, string, string][] {
+  const p = (r as { periodic?: WeaveFigures }).periodic;
+  if (!p || !r.lattice) return [];
+  const unit = lengthUnit(r);
+  const per = unit === 'layout units' ? 'layout unit' : unit;
+  const rows: [string, string, string][] = [
+    ['weave', `${p.kind}, ${p.cellRings} rings per cell${p.repeats ? ` (listed as a block of ${p.repeats.join(' x ')} cells)` : ''}`, ''],
+    ['minimum aspect ratio of the weave', num(r.aspectRatio, 4), DIMENSIONLESS],
+  ];
+  r.lattice.vectors.forEach((v, k) => {
+    const cells = p.repeats?.[k] ?? 1;
+    rows.push([`lattice vector ${k + 1} (of one cell)`, `${vecText(v.map((x) => x / cells))}, length ${num(Math.hypot(...v) / cells)}`, unit]);
+  });
+  if (p.ringsPerUnitLength !== undefined) rows.push(['rings per length', num(p.ringsPerUnitLength, 4), `per ${per}`]);
+  if (p.ringsPerUnitArea !== undefined) rows.push(['rings per area', num(p.ringsPerUnitArea, 4), `per square ${per}`]);
+  if (p.weight) {
+    const w = weightFigure(p.weight);
+    rows.push(['weight', `${w.value} (${num(p.weight.rings, 4)} rings per ${p.weight.per}, wire ${num(p.weight.wireDiameterMm, 4)} mm)`, w.unit]);
+  }
+  return rows;
+}
+
+/** Weight in units a maker uses: g/m for chain, kg/m² for sheet. */
+export function weightFigure(w: Pick<WeaveWeight, 'grams' | 'per'>): { value: string; unit: string } {
+  return w.per === 'metre' ? { value: num(w.grams, 4), unit: 'g/m' } : { value: num(w.grams / 1000, 4), unit: 'kg/m²' };
+}
+
+// A vector with components below 1e-12 of its largest shown as 0 (rounding noise, not geometry).
+function vecText(v: ArrayLike<number>): string {
+  const big = Math.max(...Array.from(v, Math.abs));
+  return `(${Array.from(v, (x) => num(Math.abs(x) <= 1e-12 * big ? 0 : x, 4)).join(', ')})`;
 }
 
 function solveSummary(r: SolveResult): string {

@@ -120,8 +120,8 @@ describe('wire gauge (AWG, ASTM B258 formula)', () => {
   });
 
   it('picks the thickest gauge not thicker than the wire', () => {
-    expect(gaugeAtMost(2.0)!.awg).toBe(13);
-    expect(gaugeAtMost(awgDiameter(16))!.awg).toBe(16);
+    expect(gaugeAtMost(2.0)!.number).toBe(13);
+    expect(gaugeAtMost(awgDiameter(16))!.number).toBe(16);
     expect(gaugeAtMost(0.01)).toBeNull();
     expect(gaugeAtMost(20)).toBeNull();
   });
@@ -145,40 +145,53 @@ describe('fabricate command', () => {
     expect(json['presetNote']).toMatch(/rules of thumb/);
   });
 
-  it('a wall below the minimum gives a clear WARNING in text and JSON', async () => {
+  it('a wall below the minimum is bad input naming the smallest size that meets it; --allow-thin makes it with a WARNING', async () => {
     const dir = tempDir('fab-wall');
     const path = writeResult(dir, 'chain.json', threeChain());
+    const stl = join(dir, 'thin.stl');
     // Outer diameter 3 mm for SLS: s = (3 + 0.5) / (2 * 4/3), wire 2 s / 3 = 0.875 mm, printed 0.375 < 0.7 mm.
-    const { code, json, stderr } = await runJson(['fabricate', path, '--outer-diameter', '3', '--process', 'sls']);
+    // The wall is met from s = (0.7 + 0.5) / (2/3) = 1.8, i.e. OD = 2 (4/3) 1.8 - 0.5 = 4.3 mm (closed form).
+    const io = captureIo();
+    expect(await main(['fabricate', path, '--outer-diameter', '3', '--process', 'sls', '--stl', stl], io)).toBe(2);
+    expect(io.stderr.join('\n')).toMatch(/below the minimum wall 0\.7 mm.*--outer-diameter 4\.3 \(mm\)/);
+    expect(existsSync(stl)).toBe(false);
+    // The size the message names really meets the wall.
+    const ok = await runJson(['fabricate', path, '--outer-diameter', '4.3', '--process', 'sls']);
+    expect(ok.code).toBe(0);
+    expect(ok.json['minWallMet']).toBe(true);
+    const { code, json, stderr } = await runJson(['fabricate', path, '--outer-diameter', '3', '--process', 'sls', '--allow-thin']);
     expect(code).toBe(0);
     expect(json['minWallMet']).toBe(false);
     expect(json['thinnestPrintedWireDiameter']).toBeCloseTo(0.375, 12);
     expect((json['warnings'] as string[]).some((w) => /^WARNING: .*below the minimum wall 0\.7 mm/.test(w))).toBe(true);
     expect(stderr).toMatch(/WARNING/);
-    const io = captureIo();
-    expect(await main(['fabricate', path, '--outer-diameter', '3', '--process', 'sls'], io)).toBe(0);
-    const text = io.stdout.join('\n');
-    expect(text).toMatch(/minimum wall 0\.7 mm: NOT met/);
-    expect(text).toMatch(/WARNING: ring A's printed wire diameter 0\.375 mm is below the minimum wall 0\.7 mm/);
   });
 
-  it('--min-wall overrides the preset', async () => {
+  it('--min-wall overrides the preset (refused without --allow-thin)', async () => {
     const dir = tempDir('fab-minwall');
     const path = writeResult(dir, 'hopf.json', tightHopf());
-    const { json } = await runJson(['fabricate', path, '--core-radius', '10', '--process', 'fdm', '--min-wall', '12']);
+    const io = captureIo();
+    // Tight Hopf wire = R (Cantarella, Kusner, Sullivan 2002): printed 10 - 0.3 = 9.7 mm < 12 mm; the wall
+    // is met from R = 12 + 0.3 = 12.3 mm.
+    expect(await main(['fabricate', path, '--core-radius', '10', '--process', 'fdm', '--min-wall', '12'], io)).toBe(2);
+    expect(io.stderr.join('\n')).toMatch(/--core-radius 12\.3 \(mm\)/);
+    const { json } = await runJson(['fabricate', path, '--core-radius', '10', '--process', 'fdm', '--min-wall', '12', '--allow-thin']);
     expect(json['minWall']).toBe(12);
     expect(json['minWallMet']).toBe(false);
   });
 
-  it('wire process prints the gauge note and every number with its unit', async () => {
+  it('wire process prints each ring size once with its SWG and AWG gauges and every number with its unit', async () => {
     const dir = tempDir('fab-wire');
     const path = writeResult(dir, 'chain.json', threeChain());
     const io = captureIo();
     expect(await main(['fabricate', path, '--inner-diameter', '6', '--process', 'wire'], io)).toBe(0);
     const text = io.stdout.join('\n');
-    expect(text).toMatch(/9 AWG \(2\.906\d* mm\) is the thickest AWG gauge not over 3 mm/);
+    // 9 AWG = 2.906 mm (ASTM B258 table); 11 SWG = 0.116 in = 2.946 mm (Imperial Standard Wire Gauge, 1883).
+    expect(text).toMatch(/rings A, B, C \(3\): wire 3 mm \(thickest gauges not over it: 11 SWG 2\.9464 mm, 9 AWG 2\.9064 mm\)/);
+    expect(text.match(/wire 3 mm/g)!.length).toBe(1);
     expect(text).toMatch(/aspect ratio .*: 2 \(dimensionless\)/);
     expect(text).toMatch(/rules of thumb/);
+    expect(text).not.toMatch(/printed/);
   });
 
   it('writes STL, OBJ and 3MF that agree with the checked meshes', async () => {

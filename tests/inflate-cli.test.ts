@@ -62,6 +62,10 @@ describe('thickring inflate', () => {
     expect(r.units).toBe('mm');
     expect(Math.abs(r.tube - 5)).toBeLessThan(1e-7);
     expect(verifyRings(r.rings, r.tube, r.linking).ok).toBe(true);
+    // Progress lines carry the layout's unit too.
+    const progress = io.stderr.join('\n');
+    expect(progress).toMatch(/best [\d.]+ \(mm\)/);
+    expect(progress).not.toMatch(/layout units/);
   });
 
   it('bad options exit 2 with a message naming the option', async () => {

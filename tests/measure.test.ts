@@ -26,8 +26,9 @@ describe('measureLayout against closed forms', () => {
     expect(m.pairs[0]!.continuum?.kind).toBe('coaxial');
     expect(m.tube).toBeCloseTo(d / 2, 10);
     expect(m.limitedBy).toEqual({ rings: [], pairs: [{ a: 'A', b: 'B' }] });
-    // Thinnest wall relative to wire: the larger ring, (R1 - t) / t.
-    expect(m.aspectRatio).toBeCloseTo((R1 - d / 2) / (d / 2), 9);
+    // The headline is the smallest aspect ratio over the rings (design contract): the smaller ring, (R0 - t) / t.
+    expect(m.aspectRatio).toBeCloseTo((R0 - d / 2) / (d / 2), 9);
+    expect(m.aspectRatioRing).toBe('A');
     expect(m.units).toBe('mm');
     expect(m.linking).toEqual([[0, 0], [0, 0]]);
     expect(m.unheld).toEqual(['A', 'B']);
@@ -177,12 +178,17 @@ describe('thickring measure (through cli/main with a capturing Io)', () => {
     ['intersecting circles', JSON.stringify(layoutOf([ring('A', [0, 0, 0], [0, 0, 1], 1), ring('B', [1, 0, 0.5], [0, 1, 0], 0.5)])), /ring A and ring B: core circles intersect/],
   ];
   bad.forEach(([what, text, message], k) => {
-    it(`bad input, ${what}: exit 2, one-line message on stderr, nothing on stdout`, async () => {
-      const r = await run(['measure', file(`bad-${k}.json`, text), '--json']);
+    it(`bad input, ${what}: exit 2, one-line message on stderr; with --json one error object on stdout`, async () => {
+      const r = await run(['measure', file(`bad-${k}.json`, text)]);
       expect(r.code).toBe(2);
       expect(r.out).toBe('');
       expect(r.err).toMatch(message);
       expect(r.err.trim().split('\n')).toHaveLength(1);
+      const j = await run(['measure', file(`bad-${k}.json`, text), '--json']);
+      expect(j.code).toBe(2);
+      const o = JSON.parse(j.out) as { error: { message: string; exitCode: number } };
+      expect(o.error.message).toMatch(message);
+      expect(o.error.exitCode).toBe(2);
     });
   });
 

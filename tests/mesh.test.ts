@@ -205,7 +205,7 @@ describe('file formats', () => {
     const root = /<model\b([^>]*)>/.exec(model)![1]!;
     expect(root).toContain('unit="millimeter"');
     expect(root).toContain(`xmlns="${CORE_NAMESPACE}"`);
-    const objects = [...model.matchAll(/<object id="(\d+)" name="([^"]*)" type="model">([\s\S]*?)<\/object>/g)];
+    const objects = [...model.matchAll(/<object id="(\d+)" name="([^"]*)" type="model">\s*<mesh>([\s\S]*?)<\/object>/g)];
     expect(objects.map((m) => m[2])).toEqual(['A', 'B']);
     objects.forEach((m, k) => {
       const body = m[3]!;
@@ -215,8 +215,39 @@ describe('file formats', () => {
       expect(tris.length).toBe(bodies[k]!.triangles.length / 3);
       for (const t of tris) for (const i of [t[1], t[2], t[3]].map(Number)) expect(i).toBeLessThan(verts.length);
     });
+    // One build item: an object of components that references every ring's mesh object, so the rings move as one.
     const items = [...model.matchAll(/<item objectid="(\d+)"\/>/g)].map((m) => m[1]);
-    expect(items).toEqual(objects.map((m) => m[1]));
+    expect(items.length).toBe(1);
+    const assembly = new RegExp(`<object id="${items[0]}"[^>]*>\\s*<components>([\\s\\S]*?)</components>`).exec(model);
+    expect(assembly).not.toBeNull();
+    const parts = [...assembly![1]!.matchAll(/<component objectid="(\d+)"\/>/g)].map((m) => m[1]);
+    expect(parts).toEqual(objects.map((m) => m[1]));
+    // Components must refer to objects defined earlier in the resources (3MF Core Specification, 3.4.2).
+    expect(model.indexOf(`<object id="${items[0]}"`)).toBeGreaterThan(model.indexOf(`<object id="${objects[objects.length - 1]![1]}"`));
+  });
+
+  it('fabricate puts the assembly on the build plate: lowest vertex z = 0, centred in x and y (every format)', async () => {
+    const dir = tempDir('plate');
+    const path = writeResult(dir, 'chain.json', threeChain());
+    const stl = join(dir, 'c.stl'), obj = join(dir, 'c.obj'), tmf = join(dir, 'c.3mf');
+    expect(await main(['fabricate', path, '--core-radius', '6', '--process', 'fdm', '--chord', '0.05', '--stl', stl, '--obj', obj, '--3mf', tmf], captureIo())).toBe(0);
+    const ext = (xs: number[][]) => [0, 1, 2].map((k) => [Math.min(...xs.map((p) => p[k]!)), Math.max(...xs.map((p) => p[k]!))]);
+    const objVerts = readFileSync(obj, 'utf8').split('\n').filter((l) => l.startsWith('v ')).map((l) => l.slice(2).split(' ').map(Number));
+    const model = strFromU8(unzipSync(readFileSync(tmf))['3D/3dmodel.model']!);
+    const tmfVerts = [...model.matchAll(/<vertex x="([-\d.]+)" y="([-\d.]+)" z="([-\d.]+)"\/>/g)].map((m) => [Number(m[1]), Number(m[2]), Number(m[3])]);
+    const bytes = readFileSync(stl);
+    const stlVerts: number[][] = [];
+    for (let t = 0; t < bytes.readUInt32LE(80); t++) for (let v = 0; v < 3; v++) {
+      const o = 84 + 50 * t + 12 + 12 * v;
+      stlVerts.push([bytes.readFloatLE(o), bytes.readFloatLE(o + 4), bytes.readFloatLE(o + 8)]);
+    }
+    for (const verts of [objVerts, tmfVerts, stlVerts]) {
+      const [x, y, z] = ext(verts);
+      expect(z![0]).toBeCloseTo(0, 5);
+      // Centred in x, y within the chord: facets sit inside the exact torus by at most the chord (sagitta).
+      expect(Math.abs(x![0]! + x![1]!)).toBeLessThan(2 * 0.05);
+      expect(Math.abs(y![0]! + y![1]!)).toBeLessThan(2 * 0.05);
+    }
   });
 
   const hasAdmesh = (() => {
@@ -227,7 +258,7 @@ describe('file formats', () => {
       return false;
     }
   })();
-  it.skipIf(!hasAdmesh)('admesh (independent STL checker) finds nothing to repair', () => {
+  it.skipIf(!hasAdmesh)('admesh reads the placed assembly: lowest z = 0, nothing to repair, volume of the two tori', () => {
     const dir = tempDir('admesh');
     const path = writeResult(dir, 'hopf.json', tightHopf());
     const stl = join(dir, 'hopf.stl');
@@ -237,6 +268,16 @@ describe('file formats', () => {
       expect(out).toMatch(/Number of parts\s*:\s*2/);
       expect(out).toMatch(/Backwards edges\s*:\s*0/);
       expect(out).toMatch(/Normals fixed\s*:\s*0/);
+      expect(out).toMatch(/Degenerate facets\s*:\s*0/);
+      expect(out).toMatch(/Edges fixed\s*:\s*0/);
+      // On the build plate: admesh's Min Z is 0 (float32 in the file).
+      const minZ = Number(/Min Z\s*=\s*([-\d.e+]+)/.exec(out)![1]);
+      expect(Math.abs(minZ)).toBeLessThan(1e-5);
+      // Pappus: V = 2 pi^2 R r^2 per torus, printed r = 5 - 0.15 mm, R = 10 mm; facets lose at most the chord's share.
+      const volume = Number(/Volume\s*:\s*([\d.e+]+)/.exec(out)![1]);
+      const exact = 2 * 2 * Math.PI ** 2 * 10 * 4.85 ** 2;
+      expect(volume).toBeLessThanOrEqual(exact);
+      expect(volume).toBeGreaterThan(exact * (1 - 2 * 0.05 / 4.85));
       expect(readFileSync(stl).length).toBeGreaterThan(84);
     });
   });

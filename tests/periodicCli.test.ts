@@ -51,7 +51,7 @@ describe('thickring inflate on weaves', () => {
     const text = io.stdout.join('\n');
     expect(text).toMatch(/minimum aspect ratio \(inner diameter \/ wire diameter\) 2 \(dimensionless\)/);
     expect(text).toMatch(/Period 8 mm; 0\.25 rings per mm of length/);
-    expect(text).toMatch(/g per metre .* at wire diameter 2 mm/);
+    expect(text).toMatch(/Weight: [\d.]+ g\/m and .* at wire diameter 2 mm/);
     expect(text).toMatch(/Rings listed: a block of 3 cells/);
     const block = readResultFile(out);
     expect(block.rings).toHaveLength(6);

@@ -49,15 +49,17 @@ describe('thickring play', () => {
     expect(out).toContain('NOT LOCKED');
     expect(out).toContain('Tube analysed: 0.3 mm');
     expect(out).toContain('translations in mm, turns in degrees');
-    expect(out).toContain('Caution:');
+    expect(out).toContain('Cautions:');
   });
 
   it('exits with 2 on bad input, naming the value', async () => {
     for (const args of [['--tube', '-1'], ['--tube', 'thick'], ['--tube', '0.7'], ['--cap', '0']]) {
       const io = capture();
       expect(await main(['play', hopfFile, ...args, '--json'], io)).toBe(2);
-      expect(io.stdout()).toBe('');
-      expect(io.stderr()).toContain(args[0]!);
+      // --json: the error is one object on stdout, naming the option.
+      const o = JSON.parse(io.stdout()) as { error: { message: string; exitCode: number } };
+      expect(o.error.message).toContain(args[0]!);
+      expect(o.error.exitCode).toBe(2);
     }
     const missing = capture();
     expect(await main(['play', join(dir, 'nope.json')], missing)).toBe(2);

@@ -80,7 +80,7 @@ describe('HTML report', () => {
 
   it('has the sections and plots the issue asks for', () => {
     expect(built.plots).toEqual(['view-symmetric', 'view-broken', 'sweep', 'history', 'spread']);
-    for (const s of ['Figures', 'The rings in 3D', 'Breaking the symmetry', 'How the search went', 'Rings and contacts', 'Before you make it']) {
+    for (const s of ['Figures', 'The rings in 3D', 'Breaking the symmetry', 'How the search went', 'Rings and contacts', 'Cautions']) {
       expect(built.sections).toContain(s);
     }
     for (const id of built.plots) expect(html).toContain(`id="${id}"`);

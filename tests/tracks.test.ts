@@ -324,3 +324,15 @@ describe('tracks: bad input exits 2 and writes nothing', () => {
     expect(io.stderr.join('\n')).toMatch(/-o\/--output FILE is required/);
   });
 });
+
+describe('tracks text: no rounding noise', () => {
+  it('angles to 0.1 degree (no -0.0), gaps below 1e-9 of the tube shown as 0', async () => {
+    const { deg, g } = await import('../cli/tracks.js');
+    // pi/6 rad = 30 degrees exactly (definition of the radian).
+    expect(deg(Math.PI / 6)).toBe('30.0');
+    expect(deg(-1e-12)).toBe('0.0');
+    expect(deg((168.5649 * Math.PI) / 180)).toBe('168.6');
+    expect(g(3.3307e-16, 0.32)).toBe('0');
+    expect(g(0.0123456, 0.32)).toBe('0.012346');
+  });
+});

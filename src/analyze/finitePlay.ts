@@ -55,6 +55,8 @@ export interface PlayOptions {
   touchTol: number;
   /** Translational periodicity of a weave: every copy in nearby cells (even the ring's own) stays put. */
   lattice?: Lattice | null;
+  /** Called before each ring's search (progress on large sets). */
+  onRing?: (index: number, count: number) => void;
 }
 
 /** Step budget per direction; sliding along a contact is the slow case. */
@@ -74,6 +76,7 @@ export function finitePlay(rings: readonly RingPose[], tube: number, options: Pl
     translationCap,
     rotationCapDegrees,
     rings: rings.map((r, i) => {
+      options.onRing?.(i, rings.length);
       const [u, v] = planeBasis(r.normal);
       const others = obstacles(rings, i, options.lattice ?? null, translationCap + r.radius);
       const entries: PlayEntry[] = [];

@@ -4,6 +4,7 @@
 // where ρ_i are the rings' tube ratios (all 1 unless the layout gives per-ring tubes). A tube of
 // radius r_i stays embedded iff r_i <= R_i, and tubes i, j are disjoint iff d_ij >= r_i + r_j
 // (thickness in the sense of Gonzalez–Maddocks 1999 and Cantarella–Kusner–Sullivan 2002).
+import { tightestRing } from '../model/orbit.js';
 import { ringDistance, type Contact, type ContinuumKind } from '../kernel/index.js';
 import { displayName } from '../model/displayName.js';
 import { nearRingPairs, ringPairs } from '../model/ringPairs.js';
@@ -68,8 +69,9 @@ export interface MeasureResult {
   tube: number;
   /** tube / smallest core radius (dimensionless). */
   tubeOverCore: number;
-  /** Largest (R - r) / r over the rings: inner diameter / wire diameter of the thinnest-walled ring. */
+  /** Smallest (R - r) / r over the rings: inner diameter / wire diameter of the tightest ring, named in aspectRatioRing. */
   aspectRatio: number;
+  aspectRatioRing: string;
   tubeRatios: number[];
   /** True when the ratios come from per-ring `tube` values in the layout. */
   ratiosFromLayout: boolean;
@@ -177,7 +179,7 @@ export function measureLayout(layout: Layout): MeasureResult {
     units: layout.units ?? null,
     tube,
     tubeOverCore: tube / minR,
-    aspectRatio: measured.reduce((m, r) => Math.max(m, r.aspectRatio), -Infinity),
+    ...tightestRing(measured),
     tubeRatios: ratios,
     ratiosFromLayout: fromLayout,
     given,

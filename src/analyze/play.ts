@@ -18,6 +18,8 @@ export interface PlayAnalysisOptions {
   activeTol?: number;
   /** Largest translation searched by the finite play (layout units). */
   translationCap?: number;
+  /** Called as each stage starts (one line of progress; the CLI shows it on runs longer than a second). */
+  onProgress?: (stage: string) => void;
 }
 
 /** One ring's part of a described motion, per unit step (largest point displacement 1 layout unit). */
@@ -115,15 +117,18 @@ export async function analyzePlay(result: SolveResult, options: PlayAnalysisOpti
     }
   }
 
+  const progress = options.onProgress ?? (() => undefined);
+  progress(`first-order mobility of ${rings.length} rings`);
   const fo = await firstOrderMobility(rings, { activeTol, lattice });
   if (fo.active.minGap < -activeTol) {
     throw new InputError(
       `--tube ${tube} ${units} makes tubes overlap by ${fmt(-fo.active.minGap)} ${units}: choose a tube <= ${fmt(tube + fo.active.minGap / 2)} (the result's is ${fmt(result.tube)})`,
     );
   }
+  progress(`second-order test (${fo.active.struts.length} active contacts)`);
   const so = await secondOrderSearch(rings, fo, tube, ratios, { activeTol, lattice });
   const play = finitePlay(rings, tube, {
-    touchTol: activeTol, lattice, ...(options.translationCap !== undefined ? { translationCap: options.translationCap } : {}),
+    touchTol: activeTol, lattice, onRing: (i, n) => progress(`play of ring ${rings[i]!.name} (${i + 1} of ${n})`), ...(options.translationCap !== undefined ? { translationCap: options.translationCap } : {}),
   });
 
   const anchor = anchorRing(fo);

@@ -34,8 +34,18 @@ export interface FabricateOutput {
   /** Encoded files by format (not yet written). */
   files: Partial<Record<MeshFormat, Uint8Array>>;
   presetNote: string;
+  /** Ring pairs that touch at the optimum (from the result's contacts), "A-B"; a copy in another cell as "A-B[0,1]". */
+  touchingPairs: string[];
+  /** A weave cell result: what the sizes are of (null for a finite link or a block of cells). */
+  weave: WeaveSummary | null;
   cautions: readonly string[];
   warnings: string[];
+}
+
+export interface WeaveSummary {
+  kind: string;
+  cellRings: number;
+  lattice: number[][];
 }
 
 /** Default chord tolerance (mm): well below every process's clearance and resolution. */
@@ -59,6 +69,7 @@ export function fabricate(result: SolveResult, options: FabricateOptions): Fabri
   if (formats.length) {
     const bodies: MeshBody[] = tori.map((t) => torusMesh(t, chord));
     const check = checkMeshes(bodies, { tori, clearance: plan.clearance, chord });
+    dropOnPlate(bodies);
     mesh = {
       chord,
       segments: tori.map((t) => ({ name: t.name, ...torusSegments(t.radius, t.tube, chord) })),
@@ -73,5 +84,31 @@ export function fabricate(result: SolveResult, options: FabricateOptions): Fabri
       files[f] = f === 'stl' ? encodeStl(bodies) : f === 'obj' ? new TextEncoder().encode(encodeObj(bodies)) : encode3mf(bodies);
     }
   }
-  return { plan, mesh, files, presetNote: PRESET_NOTE, cautions: CAUTIONS, warnings };
+  return { plan, mesh, files, presetNote: PRESET_NOTE, touchingPairs: touchingPairs(result), weave: weaveSummary(result), cautions: CAUTIONS, warnings };
+}
+
+// The plan already puts the exact tori on the plate; facets sit inside the surface by up to the chord, so the
+// lowest vertex is lowered onto z = 0 as well (a slicer starts the first layer at the lowest vertex).
+function dropOnPlate(bodies: MeshBody[]): void {
+  let low = Infinity;
+  for (const b of bodies) for (let i = 2; i < b.positions.length; i += 3) low = Math.min(low, b.positions[i]!);
+  for (const b of bodies) for (let i = 2; i < b.positions.length; i += 3) b.positions[i] = b.positions[i]! - low;
+}
+
+function touchingPairs(result: SolveResult): string[] {
+  const shifts = (result as { periodic?: { contactShifts?: number[][] } }).periodic?.contactShifts;
+  const out = new Set<string>();
+  result.contacts.forEach((c, k) => {
+    const sh = shifts?.[k];
+    const shifted = sh !== undefined && sh.some((x) => x !== 0);
+    const [a, b] = !shifted && c.b < c.a ? [c.b, c.a] : [c.a, c.b];
+    out.add(`${result.rings[a]!.name}-${result.rings[b]!.name}${shifted ? `[${sh.join(',')}]` : ''}`);
+  });
+  return [...out];
+}
+
+function weaveSummary(result: SolveResult): WeaveSummary | null {
+  const p = (result as { periodic?: { kind?: unknown; cellRings?: unknown; repeats?: unknown } }).periodic;
+  if (!p || !result.lattice || p.repeats !== undefined) return null;
+  return { kind: String(p.kind), cellRings: Number(p.cellRings), lattice: result.lattice.vectors.map((v) => [...v]) };
 }

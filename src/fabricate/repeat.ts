@@ -3,7 +3,7 @@
 import { verifyConfiguration } from '../check/verify.js';
 import { blockLinking, blockShifts, expandCells, latticeOffset } from '../model/periodic.js';
 import { InputError } from '../model/errors.js';
-import type { ResultContact, ResultRing } from '../model/result.js';
+import type { ResultContact, ResultRing, SolveResult } from '../model/result.js';
 import type { Vec3 } from '../model/types.js';
 import type { PeriodicSolveResult } from '../optimize/periodicMultistart.js';
 
@@ -60,6 +60,9 @@ export function repeatResult(result: PeriodicSolveResult, repeats: number): Repe
   const v = verifyConfiguration({ rings, tube: result.tube, tubeRatios, linking });
   return {
     ...result,
+    // The block repeats with the cell's vectors times the repeats: periodic analyses (play) then see the
+    // block's own copies, not copies one cell away that would overlap the block's rings.
+    lattice: { ...result.lattice, vectors: vectors.map((v, d) => [v[0]! * counts[d]!, v[1]! * counts[d]!, v[2]! * counts[d]!] as Vec3) },
     rings,
     tubeRatios,
     linking,
@@ -72,4 +75,22 @@ export function repeatResult(result: PeriodicSolveResult, repeats: number): Repe
 
 function shift(p: ArrayLike<number>, off: Vec3): Vec3 {
   return [p[0]! + off[0], p[1]! + off[1], p[2]! + off[2]];
+}
+
+/** Cells per lattice direction in the block that finite views of a weave cell use (tracks, meshes). */
+export const VIEW_REPEATS = 3;
+
+/** True for a weave cell result (contacts with copies of its rings in other cells), not yet a block. */
+export function isWeaveCell(result: SolveResult): boolean {
+  const p = (result as Partial<PeriodicSolveResult>).periodic;
+  return result.lattice !== undefined && p !== undefined && (p as { repeats?: unknown }).repeats === undefined;
+}
+
+/**
+ * A weave cell as a block of VIEW_REPEATS cells per lattice direction, so every contact joins two listed
+ * rings; any other result unchanged.
+ */
+export function finiteView(result: SolveResult): { result: SolveResult; repeats: number | null } {
+  if (!isWeaveCell(result)) return { result, repeats: null };
+  return { result: repeatResult(result as PeriodicSolveResult, VIEW_REPEATS), repeats: VIEW_REPEATS };
 }

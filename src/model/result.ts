@@ -85,14 +85,19 @@ export interface SolveResult {
   tube: number;
   /** Common tube radius over the smallest core radius. */
   tubeOverCore: number;
+  /** Smallest inner diameter / wire diameter over the rings (Contract), and the ring it belongs to. */
   aspectRatio: number;
+  aspectRatioRing?: string;
   tubeRatios: number[];
   rings: ResultRing[];
   linking: number[][];
   symmetry: Symmetry | null;
   lattice?: Lattice;
+  /** Every contact of the arrangement: under a symmetry, the full orbit of the solver's contacts. */
   contacts: ResultContact[];
   certificate: Certificate;
+  /** What the result proves, in words (optimalityText), naming the symmetry a local certificate is limited to. */
+  optimality?: string;
   bound: Bound | null;
   starts: StartRecord[];
   verification: Verification;
@@ -142,6 +147,14 @@ export function optimalityOf(r: Pick<SolveResult, 'bound' | 'verification' | 'ce
   return r.certificate.certified ? 'local' : 'none';
 }
 
-export function optimalityText(o: Optimality): string {
-  return o === 'global' ? 'global optimum (packing bound attained)' : o === 'local' ? 'certified local optimum' : 'not certified';
+/**
+ * The optimality in words. A local certificate computed under a symmetry holds only among poses with that
+ * symmetry: breaking it may thicken the tube (play then finds a saddle), so the text names the group.
+ */
+export function optimalityText(o: Optimality, symmetry: Symmetry | null = null): string {
+  if (o === 'global') return 'global optimum (packing bound attained)';
+  if (o === 'none') return 'not certified';
+  return symmetry && symmetry.type !== 'none'
+    ? `certified among poses with ${symmetry.type}:${symmetry.order} symmetry`
+    : 'certified local optimum';
 }

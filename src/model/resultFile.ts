@@ -44,7 +44,7 @@ export function parseResult(data: unknown, source: string): SolveResult {
     throw new InputError(`${where}: units ${show(units)} must be a string or null (e.g. "mm")`);
   }
   const rings = checkRings(data['rings'], where);
-  const contacts = checkContacts(data['contacts'], rings.length, where);
+  const contacts = checkContacts(data['contacts'], rings.length, where, contactShifts(data));
   if (data['linking'] !== undefined) checkLinking(data['linking'], rings.length, where);
   checkSchema(data, where);
   return { ...(data as unknown as SolveResult), units: (units ?? null) as string | null, rings, contacts };
@@ -105,7 +105,15 @@ function checkRings(value: unknown, where: string): ResultRing[] {
   });
 }
 
-function checkContacts(value: unknown, count: number, where: string): ResultContact[] {
+// A weave cell result lists contacts with copies of its rings in other cells (periodic.contactShifts[k], lattice
+// steps); such a contact may join a ring to its own copy.
+function contactShifts(data: Record<string, unknown>): unknown[] | null {
+  const p = data['periodic'];
+  if (!isObject(p) || !isObject(data['lattice'])) return null;
+  return Array.isArray(p['contactShifts']) ? p['contactShifts'] : null;
+}
+
+function checkContacts(value: unknown, count: number, where: string, shifts: unknown[] | null): ResultContact[] {
   if (!Array.isArray(value)) {
     throw new InputError(`${where}: contacts must be an array of {a, b, onA, onB, distance, force} (may be empty)`);
   }
@@ -118,7 +126,9 @@ function checkContacts(value: unknown, count: number, where: string): ResultCont
         throw new InputError(`${label}: ${key} ${show(v)} must be a ring index 0..${count - 1}`);
       }
     }
-    if (a === b) throw new InputError(`${label}: a and b are both ${String(a)}; a contact joins two different rings`);
+    const sh = shifts?.[k];
+    const shifted = Array.isArray(sh) && sh.some((x) => typeof x === 'number' && x !== 0);
+    if (a === b && !shifted) throw new InputError(`${label}: a and b are both ${String(a)}; a contact joins two different rings (or a ring and its copy in another cell)`);
     const onA = vec3(raw['onA'], `${label}: onA`);
     const onB = vec3(raw['onB'], `${label}: onB`);
     const distance = finite(raw['distance'], `${label}: distance`);

@@ -42,7 +42,7 @@ export interface WeaveStart {
   lattice: Lattice;
 }
 
-const TRADE_SOURCE = 'weavers\' guild articles and supplier charts (references.md; figures vary by source and spring-back): a rule of thumb, not a measurement';
+const TRADE_SOURCE = 'weavers\' guild articles and supplier charts (docs/references.md; figures vary by source and spring-back): a rule of thumb, not a measurement';
 
 const ENTRIES: readonly WeaveEntry[] = [
   {

@@ -5,6 +5,8 @@ import { verifyConfiguration, CLEARANCE_TOLERANCE } from '../check/verify.js';
 import type { SolveResult, Verification } from '../model/result.js';
 import type { Ring } from '../model/types.js';
 import { ringOrbits } from '../model/symmetry.js';
+import { expandContactOrbits } from '../model/orbit.js';
+import { optimalityOf, optimalityText } from '../model/result.js';
 import { packingBound, withGap } from './bound.js';
 import type { InflateProblem, SolveOutcome } from './problem.js';
 import { resultHead, runStarts, settleBest, type StartLoopOptions, type StartsRun } from './startLoop.js';
@@ -46,13 +48,16 @@ function buildResult(
   const { outcome, status, verification, certificate, stopReason } = settleBest(run, 'configuration');
   const rings: Ring[] = outcome?.rings ?? problem.rings;
   const tube = outcome?.tube ?? 0;
+  const bound = withGap(packingBound(rings, ratios, problem.linking), tube);
   return {
     ...resultHead(options, status, tube, rings, ratios),
     linking: problem.linking.map((row) => row.slice()),
     symmetry: problem.symmetry,
-    contacts: outcome?.contacts ?? [],
+    // The solve sees one ring per orbit: list every image of its contacts.
+    contacts: expandContactOrbits(outcome?.contacts ?? [], rings, problem.symmetry),
     certificate,
-    bound: withGap(packingBound(rings, ratios, problem.linking), tube),
+    optimality: optimalityText(optimalityOf({ bound, verification, certificate }), problem.symmetry),
+    bound,
     starts: run.starts,
     verification,
     elapsedSeconds,

@@ -2,6 +2,7 @@
 // (periodicMultistart.ts): seeded starts on the worker pool (a WebAssembly abort ends only its worker),
 // every outcome checked as it arrives by the caller's independent check, progress reported, and the best
 // verified start chosen; plus the parts of the result file both fill the same way.
+import { tightestRing } from '../model/orbit.js';
 import { CLEARANCE_TOLERANCE } from '../check/verify.js';
 import { RESULT_FORMAT, type Certificate, type ResultRing, type SolveResult, type StartRecord, type Verification } from '../model/result.js';
 import type { Ring, SolveStatus } from '../model/types.js';
@@ -200,7 +201,7 @@ export function stopReasonOf(o: SolveOutcome): string {
 export function resultHead(
   options: { spec: string; command: string; units: string | null }, status: SolveStatus, tube: number,
   rings: readonly Ring[], ratios: readonly number[],
-): Pick<SolveResult, 'format' | 'command' | 'spec' | 'units' | 'status' | 'tube' | 'tubeOverCore' | 'aspectRatio' | 'tubeRatios' | 'rings'> {
+): Pick<SolveResult, 'format' | 'command' | 'spec' | 'units' | 'status' | 'tube' | 'tubeOverCore' | 'aspectRatio' | 'aspectRatioRing' | 'tubeRatios' | 'rings'> {
   const resultRings = resultRingsOf(rings, tube, ratios);
   return {
     format: RESULT_FORMAT,
@@ -210,7 +211,8 @@ export function resultHead(
     status,
     tube,
     tubeOverCore: tube / Math.min(...rings.map((r) => r.radius)),
-    aspectRatio: Math.max(...resultRings.map((r) => r.aspectRatio)),
+    // Contract: the smallest aspect ratio over the rings (the tightest ring), and its name.
+    ...tightestRing(resultRings),
     tubeRatios: ratios.slice(),
     rings: resultRings,
   };
