@@ -25,6 +25,11 @@ export interface ReportOptions {
   generatedAt?: string;
   /** Name of the result file the report was built from. */
   sourceName?: string;
+  /**
+   * Internal, for bench/ui.ts only: the former page that runs the plotting library inline and draws every
+   * plot while loading (the browser froze for many seconds). Default: the lazy page.
+   */
+  eagerPlots?: boolean;
 }
 
 export interface BuiltReport {
@@ -36,7 +41,7 @@ export interface BuiltReport {
 }
 
 const CONTENT_SECURITY_POLICY =
-  "default-src 'none'; script-src 'unsafe-inline' 'unsafe-eval'; style-src 'unsafe-inline'; " +
+  "default-src 'none'; script-src 'unsafe-inline' 'unsafe-eval' blob:; style-src 'unsafe-inline'; " +
   "img-src data: blob:; font-src data:; worker-src blob:; connect-src 'none'; form-action 'none'; base-uri 'none'";
 
 export function buildReportHtml(result: SolveResult | CompareResult, options: ReportOptions): BuiltReport {
@@ -155,9 +160,11 @@ ${cards(result, compare)}
 ${body}
 </main>
 <footer>Made by thickring 0.1.0${options.generatedAt ? ` on ${h(options.generatedAt)}` : ''}. This page works offline: everything it needs is inside the file.</footer>
-<script>${scriptSource(options.plotlySource)}</script>
+${options.eagerPlots
+    ? `<script>${scriptSource(options.plotlySource)}</script>`
+    : `<script type="text/plain" id="thickring-plotly">${scriptSource(options.plotlySource)}</script>`}
 <script type="application/json" id="thickring-plots">${jsonForScript(plots)}</script>
-<script>${BOOT_SCRIPT}</script>
+<script>${options.eagerPlots ? BOOT_SCRIPT : LAZY_BOOT_SCRIPT}</script>
 </body>
 </html>
 `;
@@ -182,6 +189,76 @@ const BOOT_SCRIPT = `
     document.body.setAttribute('data-plots', 'failed');
     console.error('thickring report: ' + (e && e.message ? e.message : e));
   });
+})();
+`;
+
+// The page first, the plots after: the plotting library (~5 MB) sits in the file as inert text, so the
+// browser shows and scrolls the page at once. It is started from a blob: URL as an async script (the
+// browser can compile that off the main thread) when a plot nears the screen, or when the page is idle.
+// Plots on screen are drawn first, the rest one per idle moment, so no single task holds the page for long.
+// data-plots on <body> says 'rendered' once every plot is drawn ('failed' if one could not be).
+const LAZY_BOOT_SCRIPT = `
+(function () {
+  var specs = JSON.parse(document.getElementById('thickring-plots').textContent);
+  var config = { displaylogo: false, responsive: true, modeBarButtonsToRemove: ['sendDataToCloud'] };
+  var loading = null;
+  function library() {
+    if (loading) { return loading; }
+    loading = new Promise(function (ok, fail) {
+      var text = document.getElementById('thickring-plotly').textContent;
+      var url = URL.createObjectURL(new Blob([text], { type: 'text/javascript' }));
+      var s = document.createElement('script');
+      s.async = true;
+      s.src = url;
+      s.onload = function () { URL.revokeObjectURL(url); if (typeof Plotly === 'undefined') { fail(new Error('plotting library missing')); } else { ok(); } };
+      s.onerror = function () { fail(new Error('plotting library could not be started')); };
+      document.head.appendChild(s);
+    });
+    return loading;
+  }
+  var left = specs.length, failed = false, queue = [], busy = false;
+  var state = specs.map(function () { return 'waiting'; });
+  function finish(e) {
+    if (e) { failed = true; console.error('thickring report: ' + (e && e.message ? e.message : e)); }
+    if (--left === 0) { document.body.setAttribute('data-plots', failed ? 'failed' : 'rendered'); }
+  }
+  function pump() {
+    if (busy || queue.length === 0) { return; }
+    busy = true;
+    var k = queue.shift();
+    var s = specs[k], el = document.getElementById(s.id);
+    library().then(function () {
+      return Plotly.newPlot(el, s.data, s.layout, config);
+    }).then(function () { finish(null); }, function (e) {
+      el.textContent = 'This plot could not be drawn: ' + (e && e.message ? e.message : e);
+      finish(e);
+    }).then(function () { busy = false; setTimeout(pump, 0); });
+  }
+  function want(k, first) {
+    if (state[k] !== 'waiting') { return; }
+    state[k] = 'queued';
+    if (first) { queue.unshift(k); } else { queue.push(k); }
+    pump();
+  }
+  var idle = window.requestIdleCallback || function (f) { return setTimeout(f, 200); };
+  function later() {
+    idle(function () {
+      for (var k = 0; k < specs.length; k++) { if (state[k] === 'waiting') { want(k, false); break; } }
+      if (state.indexOf('waiting') >= 0) { later(); }
+    });
+  }
+  if ('IntersectionObserver' in window) {
+    var seen = new IntersectionObserver(function (entries) {
+      entries.forEach(function (en) {
+        if (!en.isIntersecting) { return; }
+        seen.unobserve(en.target);
+        want(Number(en.target.getAttribute('data-plot-index')), true);
+      });
+    }, { rootMargin: '300px 0px' });
+    specs.forEach(function (s, k) { var el = document.getElementById(s.id); el.setAttribute('data-plot-index', String(k)); seen.observe(el); });
+  }
+  // Let the first paint happen before anything heavy starts.
+  setTimeout(later, 50);
 })();
 `;
 
