@@ -18,7 +18,7 @@ import { pathToFileURL } from 'node:url';
 import { chromium, type BrowserContext } from 'playwright-core';
 import { startUiServer } from '../cli/uiServer.js';
 import { buildReportHtml } from '../reports/html.js';
-import { loadPlotlySource } from '../reports/plotlySource.js';
+import { loadPlotlySource, loadViewSource } from '../reports/plotlySource.js';
 import { playView } from '../reports/playView.js';
 import { analyzePlay } from '../src/analyze/play.js';
 import { resolveSpec } from '../src/model/spec.js';
@@ -84,7 +84,7 @@ async function main(): Promise<void> {
   const oldPath = join(dir, 'pendant-old.html');
   const newPath = join(dir, 'pendant-new.html');
   writeFileSync(oldPath, buildReportHtml(result, { plotlySource, play, sourceName: 'pendant.json', eagerPlots: true }).html);
-  writeFileSync(newPath, buildReportHtml(result, { plotlySource, play, sourceName: 'pendant.json' }).html);
+  writeFileSync(newPath, buildReportHtml(result, { plotlySource, viewSource: loadViewSource(), play, sourceName: 'pendant.json' }).html);
   const server = await startUiServer({ host: '127.0.0.1', port: 0, preload: { kind: 'spec', spec: 'torus:3' } });
   const profile = mkdtempSync(join(tmpdir(), 'thickring-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
@@ -94,7 +94,7 @@ async function main(): Promise<void> {
   });
   const pages = [
     { name: 'report, old (inline plotting, all plots at load)', url: pathToFileURL(oldPath).href, shot: 'bench-report-old.png' },
-    { name: 'report, new (lazy plotting)', url: pathToFileURL(newPath).href, shot: 'bench-report-new.png' },
+    { name: 'report, new (lazy plotting, three.js 3D view)', url: pathToFileURL(newPath).href, shot: 'bench-report-new.png' },
     { name: 'thickring ui page (torus:3)', url: server.url, shot: 'bench-ui.png' },
   ];
   const rows: Record<string, unknown>[] = [];

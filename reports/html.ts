@@ -3,6 +3,7 @@
 import { CAUTIONS } from '../src/fabricate/cautions.js';
 import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
 import { escapeHtml as h, jsonForScript, scriptSource } from './escape.js';
+import { threeViewData } from './threeView.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, vec } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
 import { historyPlot, spreadPlot, sweepPlot, tubeView, gainText, type PlotSpec, type StartGroup } from './plots.js';
@@ -30,6 +31,8 @@ export interface ReportOptions {
    * plot while loading (the browser froze for many seconds). Default: the lazy page.
    */
   eagerPlots?: boolean;
+  /** Source of the three.js 3D view (loadViewSource()); when given, the 3D views use it instead of plotly. */
+  viewSource?: string | null;
 }
 
 export interface BuiltReport {
@@ -163,7 +166,8 @@ ${body}
 ${options.eagerPlots
     ? `<script>${scriptSource(options.plotlySource)}</script>`
     : `<script type="text/plain" id="thickring-plotly">${scriptSource(options.plotlySource)}</script>`}
-<script type="application/json" id="thickring-plots">${jsonForScript(plots)}</script>
+${!options.eagerPlots && options.viewSource ? `<script type="text/plain" id="thickring-view">${scriptSource(options.viewSource)}</script>` : ''}
+<script type="application/json" id="thickring-plots">${jsonForScript(options.eagerPlots || !options.viewSource ? plots : withThreeViews(plots, result, compare))}</script>
 <script>${options.eagerPlots ? BOOT_SCRIPT : LAZY_BOOT_SCRIPT}</script>
 </body>
 </html>
@@ -201,7 +205,24 @@ const LAZY_BOOT_SCRIPT = `
 (function () {
   var specs = JSON.parse(document.getElementById('thickring-plots').textContent);
   var config = { displaylogo: false, responsive: true, modeBarButtonsToRemove: ['sendDataToCloud'] };
-  var loading = null;
+  var loading = null, viewLoading = null;
+  function inert(id) {
+    return new Promise(function (ok, fail) {
+      var url = URL.createObjectURL(new Blob([document.getElementById(id).textContent], { type: 'text/javascript' }));
+      var s = document.createElement('script');
+      s.async = true;
+      s.src = url;
+      s.onload = function () { URL.revokeObjectURL(url); ok(); };
+      s.onerror = function () { fail(new Error('a script of the page could not be started')); };
+      document.head.appendChild(s);
+    });
+  }
+  function viewer() {
+    viewLoading = viewLoading || inert('thickring-view').then(function () {
+      if (typeof ThickringView === 'undefined') { throw new Error('3D view missing'); }
+    });
+    return viewLoading;
+  }
   function library() {
     if (loading) { return loading; }
     loading = new Promise(function (ok, fail) {
@@ -227,9 +248,9 @@ const LAZY_BOOT_SCRIPT = `
     busy = true;
     var k = queue.shift();
     var s = specs[k], el = document.getElementById(s.id);
-    library().then(function () {
+    (s.three ? viewer().then(function () { return ThickringView.mount(el, s.three); }) : library().then(function () {
       return Plotly.newPlot(el, s.data, s.layout, config);
-    }).then(function () { finish(null); }, function (e) {
+    })).then(function () { finish(null); }, function (e) {
       el.textContent = 'This plot could not be drawn: ' + (e && e.message ? e.message : e);
       finish(e);
     }).then(function () { busy = false; setTimeout(pump, 0); });
@@ -261,6 +282,16 @@ const LAZY_BOOT_SCRIPT = `
   setTimeout(later, 50);
 })();
 `;
+
+/** The tube views as data for the three.js view (drawn in a moment under software rendering, unlike plotly's). */
+function withThreeViews(plots: PlotSpec[], result: SolveResult, compare: CompareResult | null): unknown[] {
+  const source = (id: string): SolveResult | null =>
+    id === 'view' ? result : id === 'view-symmetric' ? compare?.symmetric ?? null : id === 'view-broken' ? compare?.broken ?? null : null;
+  return plots.map((p) => {
+    const r = source(p.id);
+    return r ? { id: p.id, three: threeViewData(r) } : p;
+  });
+}
 
 function plotDiv(p: PlotSpec): string {
   return `<div class="plot${p.tall ? ' tall' : ''}" id="${h(p.id)}"></div>`;
