@@ -128,3 +128,30 @@ describe('thickring ui command', () => {
     expect(code).toBe(0);
   });
 });
+
+describe('thickring ui --export', () => {
+  it('writes the built page with the preload, and the copy serves like the original', async () => {
+    const out = mkdtempSync(join(tmpdir(), 'thickring-ui-export-'));
+    try {
+      const err: string[] = [];
+      const lines: string[] = [];
+      const io: Io = { out: (t) => lines.push(t), err: (t) => err.push(t), interactive: false };
+      expect(await main(['ui', 'chain:3', '--export', out, '--json'], io), err.join('')).toBe(0);
+      const printed = JSON.parse(lines.join('')) as { files: number };
+      expect(printed.files).toBeGreaterThan(3);
+      const server = await startUiServer({ root: out, host: '127.0.0.1', port: 0, preload: null });
+      try {
+        const page = await get(server.port, '/');
+        expect(page.status).toBe(200);
+        expect(page.body).toContain('"spec":"chain:3"');
+        const script = /src="\.\/(assets\/[^"]+\.js)"/.exec(page.body)?.[1];
+        expect(script).toBeDefined();
+        expect((await get(server.port, `/${script}`)).status).toBe(200);
+      } finally {
+        await server.close();
+      }
+    } finally {
+      rmSync(out, { recursive: true, force: true });
+    }
+  });
+});
