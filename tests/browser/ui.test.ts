@@ -13,6 +13,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chromium, type BrowserContext } from 'playwright-core';
 import { main } from '../../cli/main.js';
 import type { Io } from '../../cli/io.js';
+import { buildReportHtml } from '../../reports/html.js';
+import { loadPlotlySource, loadViewSource } from '../../reports/plotlySource.js';
+import { pathToFileURL } from 'node:url';
+import { hopfResult } from '../reportFixture.js';
 
 const CHROMIUM = '/usr/bin/chromium';
 const ARTIFACTS = resolve('test-artifacts');
@@ -164,4 +168,33 @@ describe('thickring ui in chromium', () => {
     expect(offsite).toEqual([]);
     expect(problems).toEqual([]);
   }, 280_000);
+
+  it('the report draws its 3D view with the inlined three.js view, offline from file://', async () => {
+    const viewSource = loadViewSource();
+    expect(viewSource, 'dist/report-view is built by npm run build').not.toBeNull();
+    const path = join(ARTIFACTS, 'report-three.html');
+    writeFileSync(path, buildReportHtml(hopfResult(), { plotlySource: loadPlotlySource(), viewSource, sourceName: 'fixture.json' }).html);
+    const page = await context.newPage();
+    const problems: string[] = [];
+    const attempted: string[] = [];
+    await page.route('**/*', (route) => {
+      const u = route.request().url();
+      if (/^(file|data|blob):/.test(u)) return route.continue();
+      attempted.push(u);
+      return route.abort();
+    });
+    page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`); });
+    page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
+    await page.goto(pathToFileURL(path).href, { waitUntil: 'commit' });
+    await page.waitForSelector('body[data-plots]', { state: 'attached', timeout: 200_000 });
+    expect(await page.getAttribute('body', 'data-plots')).toBe('rendered');
+    const canvases = await page.evaluate(() =>
+      Array.from(document.querySelectorAll('.three-view canvas')).filter((c) => (c as HTMLCanvasElement).width > 0).length);
+    expect(canvases).toBe(1);
+    await page.locator('.three-view').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: join(ARTIFACTS, 'report-three.png') });
+    await page.close();
+    expect(attempted).toEqual([]);
+    expect(problems).toEqual([]);
+  }, 240_000);
 });
