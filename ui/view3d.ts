@@ -219,7 +219,9 @@ export class View3d {
     const centre = box.getCenter(new THREE.Vector3());
     const size = box.getSize(new THREE.Vector3()).length();
     this.orbit.target.copy(centre);
-    this.camera.position.copy(centre).add(new THREE.Vector3(0.55, -0.75, 0.55).multiplyScalar(size * 1.15));
+    // A narrow view needs the camera further back to keep the rings inside left and right.
+    const back = (size * 1.15) / Math.min(1, Math.max(0.3, this.camera.aspect));
+    this.camera.position.copy(centre).add(new THREE.Vector3(0.55, -0.75, 0.55).multiplyScalar(back));
     this.camera.near = size / 100;
     this.camera.far = size * 100;
     this.camera.updateProjectionMatrix();
