@@ -12,10 +12,11 @@ import { register as report } from './report.js';
 import { register as fabricate } from './fabricate.js';
 import { register as tracks } from './tracks.js';
 import { register as play } from './play.js';
+import { register as ui } from './ui.js';
 
 export type Registrar = (program: Command, io: Io) => void;
 
-const COMMANDS: Registrar[] = [catalog, measure, inflate, compare, report, fabricate, tracks, play];
+const COMMANDS: Registrar[] = [catalog, measure, inflate, compare, report, fabricate, tracks, play, ui];
 
 export function buildProgram(io: Io): Command {
   const program = new Command('thickring')

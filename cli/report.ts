@@ -6,7 +6,7 @@ import { InputError } from '../src/model/errors.js';
 import type { SolveResult } from '../src/model/result.js';
 import { buildReportHtml, type PlayView } from '../reports/html.js';
 import { readReportInput } from '../reports/input.js';
-import { loadPlotlySource } from '../reports/plotlySource.js';
+import { loadPlotlySource, loadViewSource } from '../reports/plotlySource.js';
 import { playView } from '../reports/playView.js';
 import { writeFileAtomic } from './files.js';
 import { emit, type Io } from './io.js';
@@ -55,6 +55,7 @@ export async function runReport(file: string, opts: { output: string | undefined
   }
   const built = buildReportHtml(result, {
     plotlySource: loadPlotlySource(),
+    viewSource: loadViewSource(),
     play,
     sourceName: file.split(/[\\/]/).pop() ?? file,
     generatedAt: new Date().toISOString().replace(/\.\d+Z$/, 'Z'),

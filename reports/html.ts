@@ -3,6 +3,7 @@
 import { CAUTIONS } from '../src/fabricate/cautions.js';
 import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
 import { escapeHtml as h, jsonForScript, scriptSource } from './escape.js';
+import { threeViewData } from './threeView.js';
 import { DIMENSIONLESS, lengthUnit, num, percent, vec } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
 import { historyPlot, spreadPlot, sweepPlot, tubeView, gainText, type PlotSpec, type StartGroup } from './plots.js';
@@ -25,6 +26,13 @@ export interface ReportOptions {
   generatedAt?: string;
   /** Name of the result file the report was built from. */
   sourceName?: string;
+  /**
+   * Internal, for bench/ui.ts only: the former page that runs the plotting library inline and draws every
+   * plot while loading (the browser froze for many seconds). Default: the lazy page.
+   */
+  eagerPlots?: boolean;
+  /** Source of the three.js 3D view (loadViewSource()); when given, the 3D views use it instead of plotly. */
+  viewSource?: string | null;
 }
 
 export interface BuiltReport {
@@ -36,7 +44,7 @@ export interface BuiltReport {
 }
 
 const CONTENT_SECURITY_POLICY =
-  "default-src 'none'; script-src 'unsafe-inline' 'unsafe-eval'; style-src 'unsafe-inline'; " +
+  "default-src 'none'; script-src 'unsafe-inline' 'unsafe-eval' blob:; style-src 'unsafe-inline'; " +
   "img-src data: blob:; font-src data:; worker-src blob:; connect-src 'none'; form-action 'none'; base-uri 'none'";
 
 export function buildReportHtml(result: SolveResult | CompareResult, options: ReportOptions): BuiltReport {
@@ -155,9 +163,12 @@ ${cards(result, compare)}
 ${body}
 </main>
 <footer>Made by thickring 0.1.0${options.generatedAt ? ` on ${h(options.generatedAt)}` : ''}. This page works offline: everything it needs is inside the file.</footer>
-<script>${scriptSource(options.plotlySource)}</script>
-<script type="application/json" id="thickring-plots">${jsonForScript(plots)}</script>
-<script>${BOOT_SCRIPT}</script>
+${options.eagerPlots
+    ? `<script>${scriptSource(options.plotlySource)}</script>`
+    : `<script type="text/plain" id="thickring-plotly">${scriptSource(options.plotlySource)}</script>`}
+${!options.eagerPlots && options.viewSource ? `<script type="text/plain" id="thickring-view">${scriptSource(options.viewSource)}</script>` : ''}
+<script type="application/json" id="thickring-plots">${jsonForScript(options.eagerPlots || !options.viewSource ? plots : withThreeViews(plots, result, compare))}</script>
+<script>${options.eagerPlots ? BOOT_SCRIPT : LAZY_BOOT_SCRIPT}</script>
 </body>
 </html>
 `;
@@ -184,6 +195,103 @@ const BOOT_SCRIPT = `
   });
 })();
 `;
+
+// The page first, the plots after: the plotting library (~5 MB) sits in the file as inert text, so the
+// browser shows and scrolls the page at once. It is started from a blob: URL as an async script (the
+// browser can compile that off the main thread) when a plot nears the screen, or when the page is idle.
+// Plots on screen are drawn first, the rest one per idle moment, so no single task holds the page for long.
+// data-plots on <body> says 'rendered' once every plot is drawn ('failed' if one could not be).
+const LAZY_BOOT_SCRIPT = `
+(function () {
+  var specs = JSON.parse(document.getElementById('thickring-plots').textContent);
+  var config = { displaylogo: false, responsive: true, modeBarButtonsToRemove: ['sendDataToCloud'] };
+  var loading = null, viewLoading = null;
+  function inert(id) {
+    return new Promise(function (ok, fail) {
+      var url = URL.createObjectURL(new Blob([document.getElementById(id).textContent], { type: 'text/javascript' }));
+      var s = document.createElement('script');
+      s.async = true;
+      s.src = url;
+      s.onload = function () { URL.revokeObjectURL(url); ok(); };
+      s.onerror = function () { fail(new Error('a script of the page could not be started')); };
+      document.head.appendChild(s);
+    });
+  }
+  function viewer() {
+    viewLoading = viewLoading || inert('thickring-view').then(function () {
+      if (typeof ThickringView === 'undefined') { throw new Error('3D view missing'); }
+    });
+    return viewLoading;
+  }
+  function library() {
+    if (loading) { return loading; }
+    loading = new Promise(function (ok, fail) {
+      var text = document.getElementById('thickring-plotly').textContent;
+      var url = URL.createObjectURL(new Blob([text], { type: 'text/javascript' }));
+      var s = document.createElement('script');
+      s.async = true;
+      s.src = url;
+      s.onload = function () { URL.revokeObjectURL(url); if (typeof Plotly === 'undefined') { fail(new Error('plotting library missing')); } else { ok(); } };
+      s.onerror = function () { fail(new Error('plotting library could not be started')); };
+      document.head.appendChild(s);
+    });
+    return loading;
+  }
+  var left = specs.length, failed = false, queue = [], busy = false;
+  var state = specs.map(function () { return 'waiting'; });
+  function finish(e) {
+    if (e) { failed = true; console.error('thickring report: ' + (e && e.message ? e.message : e)); }
+    if (--left === 0) { document.body.setAttribute('data-plots', failed ? 'failed' : 'rendered'); }
+  }
+  function pump() {
+    if (busy || queue.length === 0) { return; }
+    busy = true;
+    var k = queue.shift();
+    var s = specs[k], el = document.getElementById(s.id);
+    (s.three ? viewer().then(function () { return ThickringView.mount(el, s.three); }) : library().then(function () {
+      return Plotly.newPlot(el, s.data, s.layout, config);
+    })).then(function () { finish(null); }, function (e) {
+      el.textContent = 'This plot could not be drawn: ' + (e && e.message ? e.message : e);
+      finish(e);
+    }).then(function () { busy = false; setTimeout(pump, 0); });
+  }
+  function want(k, first) {
+    if (state[k] !== 'waiting') { return; }
+    state[k] = 'queued';
+    if (first) { queue.unshift(k); } else { queue.push(k); }
+    pump();
+  }
+  var idle = window.requestIdleCallback || function (f) { return setTimeout(f, 200); };
+  function later() {
+    idle(function () {
+      for (var k = 0; k < specs.length; k++) { if (state[k] === 'waiting') { want(k, false); break; } }
+      if (state.indexOf('waiting') >= 0) { later(); }
+    });
+  }
+  if ('IntersectionObserver' in window) {
+    var seen = new IntersectionObserver(function (entries) {
+      entries.forEach(function (en) {
+        if (!en.isIntersecting) { return; }
+        seen.unobserve(en.target);
+        want(Number(en.target.getAttribute('data-plot-index')), true);
+      });
+    }, { rootMargin: '300px 0px' });
+    specs.forEach(function (s, k) { var el = document.getElementById(s.id); el.setAttribute('data-plot-index', String(k)); seen.observe(el); });
+  }
+  // Let the first paint happen before anything heavy starts.
+  setTimeout(later, 50);
+})();
+`;
+
+/** The tube views as data for the three.js view (drawn in a moment under software rendering, unlike plotly's). */
+function withThreeViews(plots: PlotSpec[], result: SolveResult, compare: CompareResult | null): unknown[] {
+  const source = (id: string): SolveResult | null =>
+    id === 'view' ? result : id === 'view-symmetric' ? compare?.symmetric ?? null : id === 'view-broken' ? compare?.broken ?? null : null;
+  return plots.map((p) => {
+    const r = source(p.id);
+    return r ? { id: p.id, three: threeViewData(r) } : p;
+  });
+}
 
 function plotDiv(p: PlotSpec): string {
   return `<div class="plot${p.tall ? ' tall' : ''}" id="${h(p.id)}"></div>`;

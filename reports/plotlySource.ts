@@ -1,10 +1,26 @@
 // Where the report's plotting library comes from: the installed plotly.js-dist-min bundle.
-import { readFileSync } from 'node:fs';
+import { existsSync, readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 
 /** Source text of plotly.min.js, to be inlined into the report (no CDN, no network). */
 export function loadPlotlySource(): string {
   const require = createRequire(import.meta.url);
   const path = require.resolve('plotly.js-dist-min/plotly.min.js');
   return readFileSync(path, 'utf8');
+}
+
+/**
+ * Source text of the report's 3D view (ui/reportView.ts built by vite into dist/report-view), or null when
+ * the page has not been built (the report then draws its 3D views with plotly).
+ */
+export function loadViewSource(): string | null {
+  let dir = dirname(fileURLToPath(import.meta.url));
+  for (let k = 0; k < 4; k++) {
+    const file = join(dir, 'dist', 'report-view', 'report-view.js');
+    if (existsSync(file)) return readFileSync(file, 'utf8');
+    dir = dirname(dir);
+  }
+  return null;
 }
