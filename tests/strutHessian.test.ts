@@ -1,7 +1,7 @@
 // The curvature of a strut (src/optimize/strutHessian.ts, derived by hand from the envelope and implicit
 // function theorems) against second differences of the exact kernel's contact distance under rigid motions.
 import { describe, expect, it } from 'vitest';
-import { ringDistance } from '../src/kernel/index.js';
+import { closestPointOnCircle, pointCircleDistance, ringDistance } from '../src/kernel/index.js';
 import { expMap } from '../src/optimize/rotation.js';
 import { strutHessian } from '../src/optimize/strutHessian.js';
 import { applyRotation, randomUnit, rng } from './reference/rng.js';
@@ -66,5 +66,57 @@ describe('strut Hessian (hand derivation) against second differences of the exac
       checked++;
     }
     expect(checked).toBeGreaterThanOrEqual(8);
+  });
+
+  it('a material point of ring b against ring a (sampled near-contact): within 1e-6 of the largest entry', () => {
+    const r = rng(4120);
+    const H = new Float64Array(144);
+    let checked = 0;
+    for (let trial = 0; trial < 30 && checked < 8; trial++) {
+      const p: Pair = {
+        ca: [0, 0, 0], na: randomUnit(r), Ra: 1,
+        cb: [3 * r() - 1.5, 3 * r() - 1.5, 3 * r() - 1.5], nb: randomUnit(r), Rb: 0.5 + r(),
+      };
+      // A point of ring b at a random material angle: its radius vector is any unit vector normal to nb.
+      const u = randomUnit(r);
+      const k = u[0] * p.nb[0] + u[1] * p.nb[1] + u[2] * p.nb[2];
+      const v: V = [u[0] - k * p.nb[0], u[1] - k * p.nb[1], u[2] - k * p.nb[2]];
+      const lv = Math.hypot(...v);
+      if (lv < 0.2) continue;
+      const rb: V = [v[0] / lv * p.Rb, v[1] / lv * p.Rb, v[2] / lv * p.Rb];
+      const pb: V = [p.cb[0] + rb[0], p.cb[1] + rb[1], p.cb[2] + rb[2]];
+      const pa = new Float64Array(3);
+      closestPointOnCircle(pb, p.ca, p.na, p.Ra, pa);
+      // Stay away from ring a's axis, where the nearest point jumps.
+      const axial = pb[0] * p.na[0] + pb[1] * p.na[1] + pb[2] * p.na[2];
+      if (Math.hypot(pb[0] - axial * p.na[0], pb[1] - axial * p.na[1], pb[2] - axial * p.na[2]) < 0.2) continue;
+      const d = strutHessian(pa, p.ca, p.na, pb, p.cb, p.nb, H, true);
+      if (!Number.isFinite(d) || d < 0.05) continue;
+      const h = 1e-4;
+      const at = (x: Float64Array): number => {
+        const Qa = expMap(x[3]!, x[4]!, x[5]!), Qb = expMap(x[9]!, x[10]!, x[11]!);
+        const na = applyRotation(Qa as unknown as number[], p.na);
+        const rr = applyRotation(Qb as unknown as number[], rb);
+        const q = [p.cb[0] + x[6]! + rr[0], p.cb[1] + x[7]! + rr[1], p.cb[2] + x[8]! + rr[2]];
+        return pointCircleDistance(q, [x[0]!, x[1]!, x[2]!], na, p.Ra);
+      };
+      let worst = 0, largest = 0;
+      for (let i = 0; i < 12; i++) {
+        for (let j = 0; j < 12; j++) {
+          const f = (si: number, sj: number): number => {
+            const x = new Float64Array(12);
+            x[i] = x[i]! + si * h;
+            x[j] = x[j]! + sj * h;
+            return at(x);
+          };
+          const fd = (f(1, 1) - f(1, -1) - f(-1, 1) + f(-1, -1)) / (4 * h * h);
+          worst = Math.max(worst, Math.abs(fd - H[i * 12 + j]!));
+          largest = Math.max(largest, Math.abs(H[i * 12 + j]!));
+        }
+      }
+      expect(worst / largest).toBeLessThan(1e-6);
+      checked++;
+    }
+    expect(checked).toBeGreaterThanOrEqual(5);
   });
 });

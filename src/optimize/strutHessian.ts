@@ -18,6 +18,9 @@
 // variables at z = 0, so a chart pulls it back by its Jacobian alone).
 import type { Vec3 } from '../model/types.js';
 
+/** The angle Hessian counts as singular below this (relative to its size): a continuum of closest pairs. */
+const SINGULAR_REL = 1e-14;
+
 // Scratch (no allocation per strut).
 const JX = new Float64Array(36); // 3 × 12, row-major
 const FXX = new Float64Array(144);
@@ -26,13 +29,15 @@ const GF = new Float64Array(12);
 
 /**
  * Hessian (12 × 12, row-major into `out`) of the strut length between the point pa on ring a (centre ca,
- * unit normal na, radius Ra) and pb on ring b, w.r.t. (v_a, ω_a, v_b, ω_b). pa, pb must be a local closest
- * pair (d > 0). Returns the strut length, or NaN when the pair's angle Hessian is singular (a continuum).
+ * unit normal na) and pb on ring b, w.r.t. (v_a, ω_a, v_b, ω_b). pa, pb must be a local closest pair
+ * (d > 0). With `fixedB` the point on b is a material point carried by ring b (a sampled near-contact) and
+ * only the angle on a is minimised: θ = (s) alone. Returns the length, or NaN when the angle Hessian is
+ * singular (a continuum of closest pairs).
  */
 export function strutHessian(
   pa: ArrayLike<number>, ca: ArrayLike<number>, na: ArrayLike<number>,
   pb: ArrayLike<number>, cb: ArrayLike<number>, nb: ArrayLike<number>,
-  out: Float64Array,
+  out: Float64Array, fixedB = false,
 ): number {
   const w: Vec3 = [pa[0]! - pb[0]!, pa[1]! - pb[1]!, pa[2]! - pb[2]!];
   const ra: Vec3 = [pa[0]! - ca[0]!, pa[1]! - ca[1]!, pa[2]! - ca[2]!];
@@ -79,13 +84,13 @@ export function strutHessian(
   }
   // F_θθ and its inverse (2 × 2).
   const a11 = dot(Ta, Ta) - wra, a22 = dot(Tb, Tb) + wrb, a12 = -dot(Ta, Tb);
-  const det = a11 * a22 - a12 * a12;
+  const det = fixedB ? a11 : a11 * a22 - a12 * a12;
   const d = Math.hypot(w[0], w[1], w[2]);
-  if (!(Math.abs(det) > 1e-14 * (a11 * a11 + a22 * a22)) || !(d > 0)) {
+  if (!(Math.abs(det) > SINGULAR_REL * (fixedB ? Math.abs(a11) : a11 * a11 + a22 * a22)) || !(d > 0)) {
     out.fill(NaN);
     return NaN;
   }
-  const i11 = a22 / det, i22 = a11 / det, i12 = -a12 / det;
+  const i11 = fixedB ? 1 / a11 : a22 / det, i22 = fixedB ? 0 : a11 / det, i12 = fixedB ? 0 : -a12 / det;
   for (let p = 0; p < 12; p++) GF[p] = JX[p]! * w[0] + JX[12 + p]! * w[1] + JX[24 + p]! * w[2];
   const d3 = d * d * d;
   for (let p = 0; p < 12; p++) {
