@@ -34,6 +34,11 @@ export interface KktModel<C extends Constraint, P> {
   evaluate(con: C, posed: P, keep: boolean): number;
   /** A working copy with its own gradient and points (tracking moves the stored angles). */
   copy(con: C): C;
+  /**
+   * The exact Lagrangian Hessian Σ λ_k ∇²g_k at `posed` (n × n row-major, free coordinates), or null where
+   * the chart cannot give it; then it is taken by central differences of the gradients.
+   */
+  hessian?(cons: readonly C[], posed: P, lambda: Float64Array): Float64Array | null;
 }
 
 export interface KktSettings {
@@ -121,10 +126,14 @@ export function kktJacobianOf<C extends Constraint, P>(
     if (!Number.isFinite(model.evaluate(con, posed, false))) return null;
     A.push(Float64Array.from(con.grad));
   }
-  // W = Σ λ ∇²g by central differences of gradients; times L for the scaled z.
+  // W = Σ λ ∇²g, exact where the chart gives it, else by central differences of gradients; times L for the scaled z.
   const h = HESSIAN_STEP_REL * L;
   const W = new Matrix(n, n);
-  for (let j = 0; j < n; j++) {
+  const exact = model.hessian?.(cons, posed, lambda) ?? null;
+  if (exact) {
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) W.set(i, j, exact[i * n + j]! * L);
+  }
+  for (let j = 0; j < n && !exact; j++) {
     const col = new Float64Array(n);
     for (const sgn of [1, -1]) {
       const zz = Float64Array.from(z);

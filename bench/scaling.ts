@@ -1,0 +1,128 @@
+// Scaling benchmark: time to tol 1e-9 and outer iterations against the ring count N for chain:N and
+// necklace:N (N = 4, 8, 16, … up to --max, default 64), two methods side by side in the same run:
+//   differenced  the Newton polish's Lagrangian Hessian by central differences of gradients (n·m strut
+//                evaluations per Newton step), the method before the strut curvatures;
+//   exact        the same from the exact strut curvatures (strutHessian.ts, lagrangianHessian.ts; m blocks).
+// The outer loop's step (the proximal QP) is the same for both. Seeded, one warm-up solve, median of
+// repeats, a time budget per case (a case over budget is reported as "> budget" and left out of the fit);
+// the fitted exponent is the least-squares slope of log(time) against log(N) over the cases in budget.
+// Run: npm run build && node dist/bench/scaling.js [--max 64] [--repeats 1] [--budget 60] [--json]
+import { solveInflate } from '../src/optimize/solve.js';
+import { useExactHessian } from '../src/optimize/polish.js';
+import { verifyOutcome } from '../src/optimize/multistart.js';
+import type { InflateProblem } from '../src/optimize/problem.js';
+import { resolveSpec } from '../src/model/spec.js';
+
+const SEED = 20261201;
+const TOL = 1e-9;
+const MAX_ITERATIONS = 400;
+
+const args = process.argv.slice(2);
+const num = (name: string, dflt: number): number => {
+  const i = args.indexOf(name);
+  return i >= 0 ? Number(args[i + 1]) : dflt;
+};
+const MAX_N = num('--max', 64);
+const REPEATS = Math.max(1, num('--repeats', 1));
+const BUDGET_S = num('--budget', 60);
+const json = args.includes('--json');
+const METHODS = ['differenced', 'exact'] as const;
+type Method = (typeof METHODS)[number];
+
+class OverBudget extends Error {}
+
+function problemOf(spec: string): InflateProblem {
+  const r = resolveSpec(spec);
+  return { rings: r.layout.rings, tubeRatios: r.layout.rings.map(() => 1), linking: r.linking, symmetry: null };
+}
+
+interface Cell {
+  seconds: number | null;
+  iterations: number;
+  status: string;
+  tube: number;
+  verified: boolean;
+}
+
+async function solveOnce(spec: string, method: Method): Promise<Cell> {
+  useExactHessian(method === 'exact');
+  const problem = problemOf(spec);
+  const t0 = performance.now();
+  try {
+    const out = await solveInflate(problem, {
+      tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05,
+      onIteration: () => {
+        if ((performance.now() - t0) / 1000 > BUDGET_S) throw new OverBudget();
+      },
+    });
+    const seconds = (performance.now() - t0) / 1000;
+    const verified = verifyOutcome(problem, out).ok;
+    return { seconds, iterations: out.iterations, status: out.status, tube: out.tube, verified };
+  } catch (e) {
+    if (e instanceof OverBudget) return { seconds: null, iterations: 0, status: '> budget', tube: NaN, verified: false };
+    throw e;
+  }
+}
+
+async function measure(spec: string, method: Method): Promise<Cell> {
+  const runs: Cell[] = [];
+  for (let r = 0; r < REPEATS; r++) {
+    const c = await solveOnce(spec, method);
+    runs.push(c);
+    if (c.seconds === null) return c;
+  }
+  runs.sort((a, b) => a.seconds! - b.seconds!);
+  return runs[Math.floor(runs.length / 2)]!;
+}
+
+function slope(points: [number, number][]): number {
+  if (points.length < 2) return NaN;
+  const xs = points.map((p) => Math.log(p[0])), ys = points.map((p) => Math.log(p[1]));
+  const mx = xs.reduce((a, b) => a + b) / xs.length, my = ys.reduce((a, b) => a + b) / ys.length;
+  let sxy = 0, sxx = 0;
+  xs.forEach((x, i) => {
+    sxy += (x - mx) * (ys[i]! - my);
+    sxx += (x - mx) ** 2;
+  });
+  return sxy / sxx;
+}
+
+async function main(): Promise<void> {
+  // Warm-up: load the WebAssembly solvers and let the JIT settle.
+  for (const m of METHODS) await solveOnce('chain:3', m);
+  const Ns: number[] = [];
+  for (let n = 4; n <= MAX_N; n *= 2) Ns.push(n);
+  const rows: { spec: string; N: number; cells: Record<Method, Cell> }[] = [];
+  for (const family of ['chain', 'necklace']) {
+    for (const N of Ns) {
+      const spec = `${family}:${N}`;
+      const cells = {} as Record<Method, Cell>;
+      for (const m of METHODS) {
+        cells[m] = await measure(spec, m);
+        process.stderr.write(`${spec} ${m}: ${cells[m].seconds === null ? `> ${BUDGET_S} s` : `${cells[m].seconds!.toFixed(2)} s`}, ${cells[m].iterations} it, ${cells[m].status}, tube ${cells[m].tube}\n`);
+      }
+      rows.push({ spec, N, cells });
+    }
+  }
+  const fits: Record<string, number> = {};
+  for (const family of ['chain', 'necklace']) {
+    for (const m of METHODS) {
+      const pts = rows.filter((r) => r.spec.startsWith(family) && r.cells[m].seconds !== null).map((r) => [r.N, r.cells[m].seconds!] as [number, number]);
+      fits[`${family}/${m}`] = slope(pts);
+    }
+  }
+  if (json) {
+    console.log(JSON.stringify({ seed: SEED, tol: TOL, repeats: REPEATS, budgetSeconds: BUDGET_S, rows, exponents: fits }, null, 2));
+    return;
+  }
+  const fmt = (c: Cell): string => (c.seconds === null ? `> ${BUDGET_S} s` : `${c.seconds.toFixed(2)} s`);
+  console.log(`| case | differenced: time | it | status | exact: time | it | status | tube (exact) |`);
+  console.log(`| --- | --- | --- | --- | --- | --- | --- | --- |`);
+  for (const r of rows) {
+    const d = r.cells.differenced, e = r.cells.exact;
+    console.log(`| ${r.spec} | ${fmt(d)} | ${d.iterations} | ${d.status}${d.verified ? '' : ' (unverified)'} | ${fmt(e)} | ${e.iterations} | ${e.status}${e.verified ? '' : ' (unverified)'} | ${e.tube} |`);
+  }
+  for (const [k, v] of Object.entries(fits)) console.log(`fitted exponent of time against N, ${k}: ${v.toFixed(2)}`);
+}
+
+await main();
