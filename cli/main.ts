@@ -68,7 +68,12 @@ function jsonError(io: Io, message: string, field: string | null, exitCode: numb
 function fieldOf(e: Error): string | null {
   const own = (e as { field?: unknown }).field;
   if (typeof own === 'string') return own;
-  return optionIn(e.message) ?? (/^(result file|layout|tracks file) '[^']*'/.exec(e.message)?.[0] ?? null);
+  const opt = optionIn(e.message) ?? /^(result file|layout|tracks file) '[^']*'/.exec(e.message)?.[0];
+  if (opt) return opt;
+  // Messages lead with their subject ("ring A: center[0] ... "): the subject and the value named after it.
+  const lead = /^([^:]{1,60}): ([A-Za-z$][\w$]*(?:\[\d+\])*)/.exec(e.message);
+  if (lead) return `${lead[1]}: ${lead[2]}`;
+  return /^([^:]{1,60}):/.exec(e.message)?.[1] ?? null;
 }
 
 function optionIn(message: string): string | null {

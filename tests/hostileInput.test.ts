@@ -35,7 +35,10 @@ function layoutFile(name: string, data: unknown): string {
 /** Exit 2 with exactly one stderr line, no raw control bytes, matching `field`. */
 async function expectBadInput(args: string[], field: RegExp): Promise<string> {
   const { code, io } = await run(args);
-  const err = io.stderr.join('\n');
+  // With --json the error is one JSON object on stdout (design contract); otherwise one line on stderr.
+  const err = args.includes('--json')
+    ? (JSON.parse(io.stdout.join('\n')) as { error: { message: string } }).error.message
+    : io.stderr.join('\n');
   expect(code).toBe(2);
   expect(err.split('\n').filter((l) => l.trim() !== '')).toHaveLength(1);
   expect(err).not.toMatch(RAW_CONTROL);
