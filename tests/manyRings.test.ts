@@ -77,6 +77,8 @@ describe('measure on many rings', () => {
   it(`a chain of 300 (above ${MEASURE_DENSE_LINKING_MAX}): links hold the 299 consecutive pairs, one linked piece`, async () => {
     const m = await measure(file('chain300.json', chain(300)));
     expect(m.linking).toBeNull();
+    // Hand geometry: ring k+1 crosses ring k's plane once inside its disk (0.5 from the core) and once outside, so
+    // each consecutive pair links once; rings two apart have centres 3 = 3R apart, more than 2R, so cannot link (header).
     expect(m.links.map((l) => `${l.a}-${l.b}`)).toEqual(Array.from({ length: 299 }, (_, k) => `${k}-${k + 1}`));
     expect(m.components).toHaveLength(1);
     expect(m.unheld).toEqual([]);
@@ -84,6 +86,8 @@ describe('measure on many rings', () => {
 
   it(`up to ${MEASURE_ALL_PAIRS_MAX} rings every pair is listed and linking is the full matrix, matching links`, async () => {
     const m = await measure(file('chain10.json', chain(10)));
+    // 45 = C(10, 2) pairs and 9 consecutive links (hand count, geometry as above); the matrix agreeing with the
+    // sparse list is internal consistency, no outside source.
     expect(m.pairs).toHaveLength(45);
     expect(m.linking).toHaveLength(10);
     for (const l of m.links) expect(m.linking![l.a]![l.b]).toBe(l.linking);

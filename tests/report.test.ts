@@ -78,7 +78,7 @@ describe('HTML report', () => {
     expect(html).toContain('&lt;img src=x onerror=&quot;window.__pwned=1&quot;&gt;');
   });
 
-  it('has the sections and plots the issue asks for', () => {
+  it('has every section and plot of the report (figures, 3D views, sweep, search history, contacts, cautions)', () => {
     expect(built.plots).toEqual(['view-symmetric', 'view-broken', 'sweep', 'history', 'spread']);
     for (const s of ['Figures', 'The rings in 3D', 'Breaking the symmetry', 'How the search went', 'Rings and contacts', 'Cautions']) {
       expect(built.sections).toContain(s);

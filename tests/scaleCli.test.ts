@@ -60,6 +60,8 @@ describe('--time-limit', () => {
     expect(r.verification.ok).toBe(true);
     expect(verifyRings(r.rings, r.tube, r.linking).ok).toBe(true);
     expect(r.bound!.tube).toBeCloseTo(1 / 3, 12);
+    // Bound R/3 for R = 1 from the packing bound k = 2 (header); the gap is the relative shortfall by its
+    // definition (internal consistency, no outside source).
     expect(r.bound!.gap).toBeCloseTo((1 / 3 - r.tube) / (1 / 3), 12);
     expect(r.bound!.gap).toBeGreaterThan(0);
   });

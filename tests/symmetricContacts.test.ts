@@ -18,6 +18,8 @@ import { captureIo, tempDir } from './fabricateFixtures.js';
 const TOUCH_REL = 1e-6;
 
 const cases = [
+  // (3,3) torus link (references.md): three pairwise-linked rings; the cyclic group carries one touching pair
+  // onto the other two, so all 3 pairs touch (hand derivation).
   { spec: 'torus:3', symmetry: 'cyclic:3', pairs: 3 },
   // At the packing bound for k = 4 (Graham et al., Discrete Math. 181, 1998) the four rings pierce the centre
   // ring's disk at the corners of a square, 2r apart: each touches the centre ring and its two neighbours.
@@ -52,6 +54,8 @@ describe.each(cases)('$spec under $symmetry', ({ spec, symmetry, pairs }) => {
     expect(touching.length).toBe(pairs);
     const listed = [...new Set(result.contacts.map((c) => [c.a, c.b].sort().join('-')))].sort();
     expect(listed).toEqual(touching);
+    // Strut forces are normalised to sum 1 (the result's own convention):
+    // internal consistency, no outside source.
     expect(result.contacts.reduce((s, c) => s + c.force, 0)).toBeCloseTo(1, 12);
     // Every listed contact really is a touching point: its points lie on the two cores at the touching distance.
     for (const c of result.contacts) {
@@ -84,6 +88,7 @@ describe.each(cases)('$spec under $symmetry', ({ spec, symmetry, pairs }) => {
     expect(await main(['play', path, '--json'], play)).toBe(0);
     const p = JSON.parse(play.stdout.join('')) as { mobility: { activeContacts: number } };
     // play finds the active struts from the geometry itself; the result must list at least as many.
+    // Agreement between commands: internal consistency, no outside source.
     expect(result.contacts.length).toBeGreaterThanOrEqual(p.mobility.activeContacts);
   }, 120_000);
 

@@ -42,6 +42,7 @@ describe('weave results downstream', () => {
     expect(await main(['tracks', cell, '-o', out], io)).toBe(0);
     expect(io.stderr.join('\n')).toMatch(/expanded into a block of 3 cells per lattice direction/);
     const t = JSON.parse(readFileSync(out, 'utf8')) as { rings: { index: number; name: string; neighbours: { index: number; contacts: unknown[] }[] }[] };
+    // Hand count: 2 rings per European 4-in-1 cell (the cell the catalogue writes) x 3 x 3 cells = 18.
     expect(t.rings.length).toBe(18);
     let touching = 0;
     for (const r of t.rings) for (const n of r.neighbours) {
@@ -56,6 +57,7 @@ describe('weave results downstream', () => {
       const io = captureIo();
       expect(await main(['play', path, '--json'], io)).toBe(0);
       const p = JSON.parse(io.stdout.join('')) as { locked: boolean; mobility: { activeContacts: number } };
+      // Locked at the optimum: common practice, no source (see header).
       expect(p.mobility.activeContacts).toBeGreaterThan(0);
       expect(p.locked).toBe(true);
     }

@@ -115,6 +115,8 @@ describe('fabricate from the wire or the mandrel', () => {
     const io = captureIo();
     expect(await main(['fabricate', p, '--wire', '2', '--spring-back', '0'], io)).toBe(0);
     const text = io.stdout.join('\n');
+    // Hand derivation: the wire scales with the tube, and B's tube is twice A's and C's, so --wire 2 sets B's
+    // wire to 2 mm and A's and C's to 1 mm.
     expect(text.match(/thickest gauges not over it/g)!.length).toBe(2);
     expect(text).toMatch(/rings A, C \(2\): wire 1 mm/);
     expect(text).toMatch(/ring B: wire 2 mm/);

@@ -83,6 +83,7 @@ export function checkLayoutText(text: string): void {
   }
   if (layout) {
     const m = measureLayout(layout);
+    // A finite positive tube and finite distances for any accepted layout: a sanity check, no outside source.
     if (!(Number.isFinite(m.tube) && m.tube > 0)) throw new Error(`measure of an accepted layout gave tube ${m.tube}`);
     for (const p of m.pairs) if (!Number.isFinite(p.distance)) throw new Error(`measure gave pair distance ${p.distance}`);
   }
