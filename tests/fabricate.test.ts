@@ -57,6 +57,8 @@ describe('sizing and printed dimensions', () => {
   });
 
   it('three-chain at the packing bound made of wire has AR exactly 2 (round-ring 2-in-1 minimum)', () => {
+    // Packing bound k = 2 (Graham et al., Discrete Math. 181, 1998): tube R/3, so AR = (R - R/3) / (R/3) = 2
+    // (references.md, round-ring 2-in-1 minimum); ID 6 mm then needs wire 6 / 2 = 3 mm.
     const p = planFabrication(threeChain(), { size: { kind: 'innerDiameter', value: 6 }, process: 'wire' });
     expect(p.clearance).toBe(0);
     expect(p.aspectRatio).toBeCloseTo(2, 12);

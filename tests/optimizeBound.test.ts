@@ -69,6 +69,7 @@ describe('packingBound', () => {
     const viaA = (1 * 1) / (1 + 2);
     const viaC = (1 * 1) / (1 + 3);
     expect(b.tube).toBeCloseTo(Math.min(viaA, viaB, viaC), 15);
+    // The gap is the relative shortfall below the bound by its definition: internal consistency, no outside source.
     expect(withGap(b, b.tube * 0.9)!.gap).toBeCloseTo(0.1, 12);
     expect(packingBound([], [], [])).toBeNull();
   });
