@@ -77,7 +77,7 @@ describe('gaussLinking', () => {
 describe('verifyConfiguration', () => {
   it('accepts the tight Hopf link at tube R/2 and rejects a tube 1e-6 thicker', () => {
     // Tight Hopf link tube R/2 (Cantarella, Kusner, Sullivan, Invent. Math. 150 (2002)); a tube 1e-6 thicker
-    // overlaps by 2e-6 of R (hand derivation: the core distance R minus twice the tube).
+    // has clearance (R - 2 t) / t = -2e-6 relative to the tube (hand derivation, R = 1).
     const good = verifyConfiguration({ rings: tightHopf(), tube: 0.5, linking: HOPF_LINK });
     expect(good.ok).toBe(true);
     expect(Math.abs(good.minClearance)).toBeLessThan(1e-12);
