@@ -24,14 +24,12 @@ import { analyzePlay } from '../src/analyze/play.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
 import { runMultistart } from '../src/optimize/multistart.js';
+import { benchArgs, median } from './stats.js';
 
 const SEED = 20261201;
 const TARGET_MS = 3000;
 const WINDOW_MS = 15_000;
-const args = process.argv.slice(2);
-const repeatsAt = args.indexOf('--repeats');
-const REPEATS = repeatsAt >= 0 ? Math.max(1, Number(args[repeatsAt + 1])) : 3;
-const json = args.includes('--json');
+const { repeats: REPEATS, json } = benchArgs(process.argv.slice(2), 3);
 const ARTIFACTS = resolve('test-artifacts');
 
 interface Load { firstRender: number; interactive: number; longestTask: number; done: number }
@@ -67,8 +65,6 @@ async function measure(context: BrowserContext, url: string, shot: string | null
   for (const [s, d] of raw.tasks) if (s >= interactive && s < WINDOW_MS) longest = Math.max(longest, d);
   return { firstRender: raw.fcp, interactive, longestTask: longest, done: raw.done };
 }
-
-const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 async function main(): Promise<void> {
   mkdirSync(ARTIFACTS, { recursive: true });

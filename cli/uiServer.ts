@@ -1,10 +1,10 @@
 // The local web server behind `thickring ui`: serves the built page (dist/ui, made by vite) and nothing
 // else. Read-only: GET and HEAD only, no directory listing, and every path is resolved inside the page's
 // folder (encoded dots and slashes, backslashes and absolute paths included) or answered 404.
-import { existsSync, readdirSync, readFileSync, statSync, mkdirSync, writeFileSync } from 'node:fs';
+import { readdirSync, readFileSync, statSync, mkdirSync, writeFileSync } from 'node:fs';
 import { createServer, type Server } from 'node:http';
 import { dirname, extname, join, resolve, sep } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { builtFile } from '../reports/plotlySource.js';
 
 /** What the page opens first: a catalogue spec, or a file's name and text (already checked by the CLI). */
 export type Preload = { kind: 'spec'; spec: string } | { kind: 'file'; name: string; text: string };
@@ -31,13 +31,9 @@ const TYPES: Record<string, string> = {
 
 /** The built page's folder; throws with the fix when the page was never built. */
 export function pageRoot(): string {
-  let dir = dirname(fileURLToPath(import.meta.url));
-  for (let k = 0; k < 5; k++) {
-    const candidate = join(dir, 'dist', 'ui');
-    if (existsSync(join(dir, 'package.json')) && existsSync(join(candidate, 'index.html'))) return candidate;
-    dir = dirname(dir);
-  }
-  throw new Error('the ui page is not built (dist/ui/index.html is missing): run npm run build');
+  const index = builtFile('ui', 'index.html');
+  if (index === null) throw new Error('the ui page is not built (dist/ui/index.html is missing): run npm run build');
+  return dirname(index);
 }
 
 export async function startUiServer(options: UiServerOptions): Promise<UiServer> {

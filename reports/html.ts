@@ -224,16 +224,8 @@ const LAZY_BOOT_SCRIPT = `
     return viewLoading;
   }
   function library() {
-    if (loading) { return loading; }
-    loading = new Promise(function (ok, fail) {
-      var text = document.getElementById('thickring-plotly').textContent;
-      var url = URL.createObjectURL(new Blob([text], { type: 'text/javascript' }));
-      var s = document.createElement('script');
-      s.async = true;
-      s.src = url;
-      s.onload = function () { URL.revokeObjectURL(url); if (typeof Plotly === 'undefined') { fail(new Error('plotting library missing')); } else { ok(); } };
-      s.onerror = function () { fail(new Error('plotting library could not be started')); };
-      document.head.appendChild(s);
+    loading = loading || inert('thickring-plotly').then(function () {
+      if (typeof Plotly === 'undefined') { throw new Error('plotting library missing'); }
     });
     return loading;
   }

@@ -12,15 +12,24 @@ export function loadPlotlySource(): string {
 }
 
 /**
+ * A file of this package's build output (`dist/...`), found from here whether this module runs from source or
+ * from dist: the nearest folder above that holds package.json and the file. Null when it was never built.
+ */
+export function builtFile(...parts: string[]): string | null {
+  let dir = dirname(fileURLToPath(import.meta.url));
+  for (let k = 0; k < 5; k++) {
+    const file = join(dir, 'dist', ...parts);
+    if (existsSync(join(dir, 'package.json')) && existsSync(file)) return file;
+    dir = dirname(dir);
+  }
+  return null;
+}
+
+/**
  * Source text of the report's 3D view (ui/reportView.ts built by vite into dist/report-view), or null when
  * the page has not been built (the report then draws its 3D views with plotly).
  */
 export function loadViewSource(): string | null {
-  let dir = dirname(fileURLToPath(import.meta.url));
-  for (let k = 0; k < 4; k++) {
-    const file = join(dir, 'dist', 'report-view', 'report-view.js');
-    if (existsSync(file)) return readFileSync(file, 'utf8');
-    dir = dirname(dir);
-  }
-  return null;
+  const file = builtFile('report-view', 'report-view.js');
+  return file === null ? null : readFileSync(file, 'utf8');
 }

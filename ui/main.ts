@@ -23,6 +23,8 @@ let selected = 0;
 /** Pose of the selected ring when the drag began (restored if the move is refused). */
 let dragStart: Ring | null = null;
 let lastCheck: PoseCheck | null = null;
+/** What the linking matrix on screen was drawn from (names, linking, changed pairs). */
+let linkingShown = '';
 let running = false;
 
 const view = new View3d($('view'), {
@@ -232,6 +234,17 @@ function live(): void {
     `core distance less both tubes)` + (check.ok ? '' : ` — ${refusal(check)}`);
   c.dataset['clearance'] = String(check.leastClearance);
   c.dataset['ok'] = String(check.ok);
+  // A drag step seldom changes the linking: redraw the matrix only when what it shows changed.
+  const shown = JSON.stringify([names, check.linking, check.changed]);
+  if (shown !== linkingShown) {
+    linkingShown = shown;
+    drawLinking(names, check);
+  }
+  view.setBad(!check.ok);
+  markRows();
+}
+
+function drawLinking(names: string[], check: PoseCheck): void {
   const t = document.createElement('table');
   t.setAttribute('aria-label', 'Linking matrix (linking numbers, dimensionless)');
   const head = document.createElement('tr');
@@ -254,8 +267,6 @@ function live(): void {
   const host = $('linking');
   host.innerHTML = '<p>Linking matrix (linking numbers, dimensionless):</p>';
   host.appendChild(t);
-  view.setBad(!check.ok);
-  markRows();
 }
 
 function markRows(): void {

@@ -1,10 +1,11 @@
 // Web Worker that runs one inflation solve at a time for the page (browserPool.ts), the browser twin of
-// workers/solve.ts: the same solver entry points, exposed with comlink.
+// workers/solve.ts: the same solver entry point and progress plumbing (workers/progress.ts), exposed with comlink.
 import './shims/atobBuffer.js';
 import * as Comlink from 'comlink';
 import type { WorkerTask } from '../workers/solve.js';
 import type { SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
 import { solveInflate } from '../src/optimize/solve.js';
+import { releaseProgress, throttledProgress } from '../workers/progress.js';
 
 /** Iteration reports at most this often (milliseconds): enough for a smooth on-screen tube. */
 const HEARTBEAT_MS = 100;
@@ -12,19 +13,11 @@ const HEARTBEAT_MS = 100;
 const api = {
   async solve(task: WorkerTask, progress?: (iteration: number, tube: number) => void): Promise<SolveOutcome> {
     const options: SolveOptions = { ...task.options, algorithm: task.options.algorithm ?? 'slsqp' };
-    if (progress) {
-      let last = 0;
-      options.onIteration = (iteration, tube) => {
-        const now = performance.now();
-        if (now - last < HEARTBEAT_MS) return;
-        last = now;
-        Promise.resolve(progress(iteration, tube)).catch(() => {});
-      };
-    }
+    if (progress) options.onIteration = throttledProgress(progress, HEARTBEAT_MS);
     try {
       return await solveInflate(task.problem as Parameters<typeof solveInflate>[0], options);
     } finally {
-      (progress as unknown as Partial<Record<typeof Comlink.releaseProxy, () => void>> | undefined)?.[Comlink.releaseProxy]?.();
+      releaseProgress(progress);
     }
   },
 };

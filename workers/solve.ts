@@ -8,6 +8,7 @@ import { isPeriodicProblem, type PeriodicProblem } from '../src/optimize/periodi
 import { solvePeriodic } from '../src/optimize/periodicSolve.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
 import { solveInflate } from '../src/optimize/solve.js';
+import { releaseProgress, throttledProgress } from './progress.js';
 
 export type Algorithm = NonNullable<SolveOptions['algorithm']>;
 
@@ -36,21 +37,11 @@ const api = {
       return new Promise<SolveOutcome>(() => {});
     }
     const options: SolveOptions = { ...task.options, algorithm };
-    if (progress) {
-      let last = 0;
-      options.onIteration = (iteration, tube) => {
-        const now = Date.now();
-        if (now - last < HEARTBEAT_MS) return;
-        last = now;
-        // Fire and forget: a report the main thread no longer wants must not fail the solve.
-        Promise.resolve(progress(iteration, tube)).catch(() => {});
-      };
-    }
+    if (progress) options.onIteration = throttledProgress(progress, HEARTBEAT_MS);
     try {
       return await (isPeriodicProblem(task.problem) ? solvePeriodic(task.problem, options) : solveInflate(task.problem, options));
     } finally {
-      // Close the callback's channel so the main thread's end of it does not outlive the task.
-      (progress as unknown as Partial<Record<typeof Comlink.releaseProxy, () => void>> | undefined)?.[Comlink.releaseProxy]?.();
+      releaseProgress(progress);
     }
   },
 };

@@ -2,45 +2,32 @@
 // file:// with every network request blocked, draw every plot (2D SVG and 3D WebGL) without a console
 // or page error, and show ring names as text even when they contain markup.
 // Outside reference: the browser itself (Debian chromium), as named in docs/references.md.
-import { existsSync, mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { mkdirSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type BrowserContext } from 'playwright-core';
+import type { BrowserContext } from 'playwright-core';
+import { launchChromium, type Browser } from './launch.js';
 import { buildReportHtml } from '../../reports/html.js';
 import { loadPlotlySource } from '../../reports/plotlySource.js';
 import { analyzePlay } from '../../src/analyze/play.js';
 import { playView } from '../../reports/playView.js';
 import { hopfResult, torus3Compare } from '../reportFixture.js';
 
-const CHROMIUM = '/usr/bin/chromium';
 const ARTIFACTS = resolve('test-artifacts');
 
 describe('HTML report in chromium', () => {
   let context: BrowserContext;
-  let profile: string;
+  let browser: Browser | undefined;
 
   beforeAll(async () => {
-    if (!existsSync(CHROMIUM)) {
-      throw new Error(`${CHROMIUM} is missing: install it with 'apt-get install -y chromium' (.ci/run does)`);
-    }
     mkdirSync(ARTIFACTS, { recursive: true });
-    profile = mkdtempSync(join(tmpdir(), 'thickring-chromium-'));
-    context = await chromium.launchPersistentContext(profile, {
-      executablePath: CHROMIUM,
-      headless: true,
-      viewport: { width: 1280, height: 900 },
-      args: [
-        '--headless', '--no-sandbox', '--disable-background-networking', '--no-first-run',
-        '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-component-update', '--disable-sync',
-      ],
-    });
+    browser = await launchChromium({ width: 1280, height: 900 });
+    context = browser.context;
   });
 
   afterAll(async () => {
-    await context?.close();
-    if (profile) rmSync(profile, { recursive: true, force: true });
+    await browser?.close();
   });
 
   const cases = [

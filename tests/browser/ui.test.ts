@@ -10,7 +10,8 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type BrowserContext } from 'playwright-core';
+import type { BrowserContext } from 'playwright-core';
+import { launchChromium, type Browser } from './launch.js';
 import { main } from '../../cli/main.js';
 import type { Io } from '../../cli/io.js';
 import { buildReportHtml } from '../../reports/html.js';
@@ -18,7 +19,6 @@ import { loadPlotlySource, loadViewSource } from '../../reports/plotlySource.js'
 import { pathToFileURL } from 'node:url';
 import { hopfResult } from '../reportFixture.js';
 
-const CHROMIUM = '/usr/bin/chromium';
 const ARTIFACTS = resolve('test-artifacts');
 /** Relative agreement asked of the page's tube / core with 1/2: the solve's default tolerance is 1e-9. */
 const HOPF_REL_TOL = 1e-6;
@@ -44,35 +44,24 @@ async function startUi(args: string[]): Promise<{ child: ChildProcess; url: stri
 
 describe('thickring ui in chromium', () => {
   let context: BrowserContext;
-  let profile: string;
+  let browser: Browser | undefined;
   let ui: { child: ChildProcess; url: string };
   let scratch: string;
 
   beforeAll(async () => {
-    if (!existsSync(CHROMIUM)) throw new Error(`${CHROMIUM} is missing: install it with 'apt-get install -y chromium'`);
     if (!existsSync(resolve('dist/ui/index.html'))) throw new Error('dist/ui is missing: run npm run build first');
     mkdirSync(ARTIFACTS, { recursive: true });
     scratch = mkdtempSync(join(tmpdir(), 'thickring-ui-files-'));
-    profile = mkdtempSync(join(tmpdir(), 'thickring-chromium-'));
     ui = await startUi(['hopf']);
-    context = await chromium.launchPersistentContext(profile, {
-      executablePath: CHROMIUM,
-      headless: true,
-      viewport: { width: 1280, height: 800 },
-      acceptDownloads: true,
-      args: [
-        '--headless', '--no-sandbox', '--disable-background-networking', '--no-first-run',
-        '--use-angle=swiftshader', '--enable-unsafe-swiftshader', '--disable-component-update', '--disable-sync',
-      ],
-    });
+    browser = await launchChromium({ width: 1280, height: 800, acceptDownloads: true });
+    context = browser.context;
   });
 
   afterAll(async () => {
-    await context?.close();
+    await browser?.close();
     if (ui?.child.exitCode === null) {
       await new Promise<void>((ok) => { ui.child.on('exit', () => ok()); ui.child.kill('SIGINT'); });
     }
-    if (profile) rmSync(profile, { recursive: true, force: true });
     if (scratch) rmSync(scratch, { recursive: true, force: true });
   });
 
