@@ -13,6 +13,7 @@ import type { InflateProblem, SolveOutcome } from '../src/optimize/problem.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
+import type { Vec3 } from '../src/model/types.js';
 
 const SEED = 20261201;
 const TOL = 1e-9;
@@ -58,11 +59,14 @@ interface Row {
 /** The spec's problem, every coordinate and radius multiplied by `scale` and moved by 10·scale along x. */
 function problemOf(spec: string, symmetry: string, scale = 1): InflateProblem {
   const r = resolveSpec(spec);
+  const move = (p: Vec3): Vec3 => [scale * (p[0] + 10), scale * p[1], scale * p[2]];
+  const sym = parseSymmetryOption(symmetry, r.layout.rings.length);
+  // The symmetry axis passes through the origin, which moves with the rings.
   return {
-    rings: r.layout.rings.map((g) => ({ ...g, center: [scale * (g.center[0] + 10), scale * g.center[1], scale * g.center[2]], radius: scale * g.radius })),
+    rings: r.layout.rings.map((g) => ({ ...g, center: move(g.center), radius: scale * g.radius })),
     tubeRatios: r.layout.rings.map(() => 1),
     linking: r.linking,
-    symmetry: parseSymmetryOption(symmetry, r.layout.rings.length),
+    symmetry: sym && { ...sym, origin: move(sym.origin) },
   };
 }
 
@@ -78,7 +82,6 @@ function reference(spec: string, tubeBound: number | null): { value: number; nam
 
 async function singleSolve(spec: string, symmetry: string, label = spec, hasTarget = true, scale = 1): Promise<Row> {
   const problem = problemOf(spec, symmetry, scale);
-  if (problem.symmetry) problem.symmetry.origin = [10 * scale, 0, 0];
   const options = { tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05 };
   // Warm-up: JIT, WebAssembly instantiation.
   await solveInflate(problem, options);

@@ -8,7 +8,7 @@ import { buildChart, posedAt } from '../src/optimize/chart.js';
 import { collectConstraints } from '../src/optimize/collect.js';
 import { kktJacobianOf } from '../src/optimize/kktNewton.js';
 import { ringKktModel, useExactHessian } from '../src/optimize/polish.js';
-import { scanPairs, representativePairs } from '../src/optimize/scan.js';
+import { pairPlan, scanPairs } from '../src/optimize/scan.js';
 import { torusLinkStart } from '../src/optimize/testPoses.js';
 import { star } from './optimizeLayouts.js';
 import { rng } from './reference/rng.js';
@@ -19,7 +19,7 @@ function compare(rings: Ring[], orbits: RingOrbits, seed: number): number {
   const chart = buildChart(rings, orbits, { elements: orbits.elements, origin: orbits.origin });
   const posed = posedAt(chart, new Float64Array(chart.nFree));
   const full = buildChart(rings, orbits, false);
-  const scans = scanPairs(posedAt(full, new Float64Array(full.nFree)), representativePairs(orbits, rings.length), rings.map(() => 1));
+  const scans = scanPairs(posedAt(full, new Float64Array(full.nFree)), pairPlan(orbits, rings.length), rings.map(() => 1));
   // Every strut and sampled contact within a wide margin, with random positive forces.
   const cons = collectConstraints(chart, posed, scans, { t: 0, margin: 10, w: rings.map(() => 1), dep: null, samples: true });
   expect(cons.filter((k) => k.kind === 'strut').length).toBeGreaterThan(0);

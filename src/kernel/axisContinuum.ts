@@ -4,7 +4,7 @@
 // circleContacts detects as a continuum along B; seen from A's side it must be found here, or the answer would
 // depend on the order of the arguments. Cold path: runs only when a contact lies on B's axis.
 import { basisInto } from './frame.js';
-import { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, fAt, GEO, Geo, MAX_CONTACTS, TWO_PI } from './queryGeometry.js';
+import { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, F_NOISE_REL, fAt, GEO, Geo, MAX_CONTACTS, TWO_PI } from './queryGeometry.js';
 
 const FR = new Float64Array(6);
 
@@ -65,8 +65,6 @@ export function addAxisFamilyToContinuum(out: Float64Array, count: number, L: nu
 
 /** Offset (radians) at which a minimum on B's axis must rise on both sides; far beyond any rounding crater. */
 const AXIS_PROBE = 1e-4;
-/** Rounding level of f relative to L^2. */
-const F_NOISE_REL = 8 * 2.220446049250313e-16;
 
 /** Below this distance (relative to L) a contact on B's axis is snapped to the point of A nearest B's centre. */
 const SNAP_REL = 1e-6;

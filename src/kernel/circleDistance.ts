@@ -32,12 +32,11 @@
 import { mulTrig22, evalTrig4 } from './trigPoly.js';
 import { basisInto, wrapAngle } from './frame.js';
 import {
-  CONTINUUM_REL_TOL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, ROOT_ANGLE_TOL, rootAt, setRoot, writeContact, writeContinuum, writeRoot,
+  CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, ROOT_ANGLE_TOL, rootAt, setRoot, writeContact, writeContinuum, writeRoot,
 } from './queryGeometry.js';
 import { alreadyListed, flatMinimum, FLAT_WINDOW, globalFallback, goldenOnF, isConstantF, refineH, sampleMinima, windowMinimum } from './exactFallbacks.js';
 import { addAxisFamilyToContinuum, axisTolerance, expandAxisContacts } from './axisContinuum.js';
 
-import { CONTINUUM_SAMPLES } from './queryGeometry.js';
 export { CONTACT_STRIDE, CONTINUUM_REL_TOL, CONTINUUM_SAMPLES, MAX_CONTACTS } from './queryGeometry.js';
 
 /** Relative size of g below which the continuum test is run (cheap pre-filter). */

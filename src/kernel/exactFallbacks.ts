@@ -3,7 +3,7 @@
 // minimum. Reads the current query from queryGeometry.ts.
 import { wrapAngle } from './frame.js';
 import {
-  CONTINUUM_REL_TOL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, CONTACT_STRIDE, ROOT_ANGLE_TOL, TWO_PI,
+  CONTINUUM_REL_TOL, F_NOISE_REL, GEO, Geo, H_NOISE, HSCALE, MAX_CONTACTS, CONTACT_STRIDE, ROOT_ANGLE_TOL, TWO_PI,
   fAt, hAt, rho2At, writeContact,
 } from './queryGeometry.js';
 
@@ -31,7 +31,7 @@ export function sampleMinima(out: Float64Array): number {
   // which the continuum test reports first.)
   let fMax = 0;
   for (let i = 0; i < nS; i++) fMax = Math.max(fMax, fAt(SAMPLE_S[i]!));
-  const fTop = fMax - F_NOISE * Math.cbrt(HSCALE[0]!) ** 2;
+  const fTop = fMax - F_NOISE_REL * Math.cbrt(HSCALE[0]!) ** 2;
   let count = 0;
   const h0 = hAt(SAMPLE_S[0]!);
   let hPrev = h0;
@@ -47,9 +47,6 @@ export function sampleMinima(out: Float64Array): number {
   }
   return count;
 }
-
-/** Rounding level of f relative to L^2. */
-const F_NOISE = 8 * 2.220446049250313e-16;
 
 /**
  * Sorted sample angles in SAMPLE_S: n uniform ones plus a geometric grid (steps rho_min/RA * 2^k) around A's
@@ -125,7 +122,7 @@ export function flatMinimum(m: number, r: number, out: Float64Array, count: numb
   const fl = fAt(m - r), fm = fAt(m), fh = fAt(m + r);
   // A flat maximum (near-coaxial rings: f varies by rounding over the window) can pass fm <= fl, fh by chance:
   // ask for a rise above f's rounding level on at least one side.
-  if (!(fm <= fl && fm <= fh) || Math.max(fl, fh) - fm <= F_NOISE * Math.cbrt(HSCALE[0]!) ** 2) return NaN;
+  if (!(fm <= fl && fm <= fh) || Math.max(fl, fh) - fm <= F_NOISE_REL * Math.cbrt(HSCALE[0]!) ** 2) return NaN;
   const x = goldenOnF(m - r, m + r);
   return alreadyListed(out, count, x, 4 * r) ? NaN : x;
 }

@@ -18,6 +18,8 @@ export const TWO_PI = 2 * Math.PI;
 
 /** Root angles are resolved to this many radians (distance error is quadratic in it, so far below 1e-16). */
 export const ROOT_ANGLE_TOL = 1e-13;
+/** Rounding level of f relative to L^2 (f has units of length^2). */
+export const F_NOISE_REL = 8 * 2.220446049250313e-16;
 /** Rounding level of h (units of length^3, times L^3). */
 export const H_NOISE = 64 * 2.220446049250313e-16;
 /** L^3 of the current query (scale of h's rounding level). */

@@ -102,7 +102,7 @@ function heightOver(v: Vec3, w: Vec3): number {
   return Math.hypot(cx, cy, cz) / Math.hypot(w[0], w[1], w[2]);
 }
 
-function combine(vectors: Vec3[], shift: number[]): Vec3 {
+export function combine(vectors: Vec3[], shift: number[]): Vec3 {
   const o: Vec3 = [0, 0, 0];
   vectors.forEach((v, k) => {
     o[0] += shift[k]! * v[0];
@@ -113,7 +113,7 @@ function combine(vectors: Vec3[], shift: number[]): Vec3 {
 }
 
 /** Every non-zero coefficient vector with |s_k| <= reach[k]. */
-function shifts(reach: number[]): number[][] {
+export function shifts(reach: number[]): number[][] {
   let out: number[][] = [[]];
   for (const m of reach) {
     const next: number[][] = [];

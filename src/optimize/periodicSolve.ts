@@ -25,14 +25,11 @@ import {
 import { periodicKktModel, polishPeriodic } from './periodicPolish.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
 import type { SolveOptions } from './problem.js';
-import { maxViolation, periodicNearPairs, trueTube } from './scan.js';
+import { maxViolation, periodicNearPairs, scanMargin, trueTube } from './scan.js';
 import { criticalCurvature } from './secondOrder.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
 } from './trustRegion.js';
-
-/** Pairs whose bounding spheres are this many core radii beyond touching distance are not scanned. */
-const SCAN_MARGIN_REL = 2;
 
 export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
   validate(problem);
@@ -120,7 +117,7 @@ function periodicLoopChart(state: State, ctx: Ctx): LoopChart<State, PeriodicCon
 function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
   const pc = buildPeriodicChart(rings, lattice);
   const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
-  const margin = 2 * Math.max(...ctx.w) * ctx.tMax + SCAN_MARGIN_REL * ctx.scale;
+  const margin = scanMargin(ctx.R, ctx.w);
   // A step that makes the lattice vectors nearly parallel would need thousands of copies: reject it.
   const pairs: PeriodicPair[] | null = periodicNearPairs(rings, lattice, margin, MAX_LATTICE_REACH);
   if (pairs === null) return { rings, lattice, scans: [], t: -Infinity };

@@ -7,7 +7,7 @@
 // every margin the local model, polish and certificate look within (trustRegion.ts: at most MARGIN_BOXES step
 // boxes of BOX_MAX_REL min R, i.e. 2 min R), so it can neither bind the tube nor enter a constraint set.
 import { CONTACT_STRIDE, MAX_CONTACTS, circleContacts, lastContinuum, nearPairs, type ContinuumKind } from '../kernel/index.js';
-import { latticeReach } from '../model/ringPairs.js';
+import { combine, latticeReach, shifts as latticeShifts } from '../model/ringPairs.js';
 import type { RingOrbits } from '../model/symmetry.js';
 import type { Lattice, Ring, Vec3 } from '../model/types.js';
 import { linkingNumberRaw } from '../topology/linking.js';
@@ -48,13 +48,6 @@ export interface PairPlan {
 /** The scan plan of a ring solve: one pair per orbit of pairs under the group, near pairs only (see scanPairs). */
 export function pairPlan(orbits: RingOrbits, n: number): PairPlan {
   return { n, perms: orbits.perms };
-}
-
-/** Every pair per orbit of pairs under the group (all pairs i < j without symmetry), near or not: O(N²). */
-export function representativePairs(orbits: RingOrbits, n: number): [number, number][] {
-  const out: [number, number][] = [];
-  for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) if (isRepresentative(orbits.perms, i, j)) out.push([i, j]);
-  return out;
 }
 
 /**
@@ -140,10 +133,7 @@ export function periodicNearPairs(
   const m = n * (1 + shifts.length);
   const centers = new Float64Array(3 * m), R = new Float64Array(m);
   for (let blk = 0; blk <= shifts.length; blk++) {
-    const off: Vec3 = [0, 0, 0];
-    if (blk > 0) {
-      shifts[blk - 1]!.forEach((c, k) => { off[0] += c * vectors[k]![0]; off[1] += c * vectors[k]![1]; off[2] += c * vectors[k]![2]; });
-    }
+    const off: Vec3 = blk > 0 ? combine(vectors, shifts[blk - 1]!) : [0, 0, 0];
     for (let i = 0; i < n; i++) {
       const p = blk * n + i, r = rings[i]!;
       centers[3 * p] = r.center[0] + off[0];
@@ -239,15 +229,4 @@ function isRepresentative(perms: readonly (readonly number[])[], i: number, j: n
     if (lo < i || (lo === i && hi < j)) return false;
   }
   return true;
-}
-
-/** Every non-zero coefficient vector with |s_k| <= reach[k], in the order of src/model/ringPairs.ts. */
-function latticeShifts(reach: readonly number[]): number[][] {
-  let out: number[][] = [[]];
-  for (const m of reach) {
-    const next: number[][] = [];
-    for (const s of out) for (let c = -m; c <= m; c++) next.push([...s, c]);
-    out = next;
-  }
-  return out.filter((s) => s.some((c) => c !== 0));
 }
