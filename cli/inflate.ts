@@ -16,8 +16,8 @@ import type { StartHeartbeat } from '../src/optimize/startLoop.js';
 import type { PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
 import { runPeriodicInflate } from '../src/optimize/periodicRun.js';
 import type { InflateProblem } from '../src/optimize/problem.js';
-import { writeFileAtomic } from './files.js';
-import { emit, type Io } from './io.js';
+import { emitResult } from './files.js';
+import type { Io } from './io.js';
 import { addSolveOptions, readSolveOptions, resolveSymmetry, type SolveCliOptions } from './options.js';
 
 export interface InflateRun {
@@ -37,14 +37,7 @@ export function register(program: Command, io: Io): void {
     const options = readSolveOptions(raw);
     const json = raw['json'] === true;
     const run = isPeriodicArg(arg) ? await runWeaveInflate(arg, options, raw, io) : await runInflate(arg, options, io, raw);
-    const output = raw['output'] as string | undefined;
-    // A failed solve writes nothing: a file already at -o stays as it was.
-    const failed = run.result.status === 'failed' || run.result.status === 'infeasible';
-    if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
-    emit(io, json, run.result, () => formatInflate(run, failed ? undefined : output));
-    if (failed) {
-      throw new Error(`no verified configuration (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
-    }
+    emitResult(io, json, raw['output'] as string | undefined, 'configuration', run.result, (output) => formatInflate(run, output));
     if (run.result.status === 'stalled') {
       io.err('thickring: warning: the solve stalled before the certificate held; the tube is feasible (checked) but may not be the largest');
     }
@@ -150,8 +143,9 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   else lines.push(`Cell area ${num(p.cellArea!)} ${u}^2; ${num(p.ringsPerUnitArea!)} rings per square ${u === 'layout units' ? 'layout unit' : u}`);
   const w = p.weight;
   if (w) {
+    const weight = weightFigure(w);
     lines.push(
-      `Weight: ${weightFigure(w).value} ${weightFigure(w).unit} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
+      `Weight: ${weight.value} ${weight.unit} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
         `inner diameter ${num(w.innerDiameterMm)} mm (${w.scale}); density ${w.density.gramsPerCm3} g/cm3${w.density.material ? ` (${w.density.material})` : ''}, ${w.density.source}`,
     );
   }
@@ -278,10 +272,10 @@ function progressReporter(io: Io, total: number, unit = 'layout units'): Progres
     bar.start(total, 0, { best: '-', running: '' });
     return {
       update: (e) => {
-        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : `${num(e.bestTube)} (layout units)` });
+        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : `${num(e.bestTube)} (${unit})` });
         for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       },
-      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)} (layout units)` }),
+      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)} (${unit})` }),
       stop: () => bar.stop(),
     };
   }
