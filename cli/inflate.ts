@@ -4,6 +4,7 @@
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
 import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
+import { DISPLAY_ZERO_REL } from '../reports/format.js';
 import { weightFigure } from '../reports/summary.js';
 import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
@@ -316,8 +317,6 @@ function sci(x: number): string {
 }
 
 /** Components below DISPLAY_ZERO_REL of the vector's scale are round-off of an exact 0: shown as 0. */
-const DISPLAY_ZERO_REL = 1e-12;
-
 function vec(v: readonly number[], scale = 1): string {
   const s = Math.max(scale, ...v.map(Math.abs));
   return v.map((x) => (Math.abs(x) < DISPLAY_ZERO_REL * s ? '0' : String(Number(x.toPrecision(6))))).join(', ');
