@@ -4,7 +4,7 @@
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
 import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
-import { DISPLAY_ZERO_REL } from '../reports/format.js';
+import { DISPLAY_ZERO_REL, textTable } from '../reports/format.js';
 import { weightFigure } from '../reports/summary.js';
 import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
@@ -213,7 +213,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   for (const n of run.notes) lines.push(n);
   lines.push('');
   lines.push('Rings');
-  lines.push(table(
+  lines.push(textTable(
     ['name', `centre (${u})`, 'normal (unit)', `core R (${u})`, `tube r (${u})`, 'aspect ratio (dimensionless)'],
     r.rings.map((x) => [x.name, vec(x.center, scale), vec(x.normal), num(x.radius), num(x.tube), num(x.aspectRatio)]),
   ));
@@ -231,12 +231,12 @@ export function formatInflate(run: InflateRun, output?: string): string {
       }
       rows.push([pair, vec(x.onA, scale), vec(x.onB, scale), num(x.distance), num(x.force), x.continuum ? 'sample of a contact circle' : '']);
     });
-    lines.push(table(['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''], rows));
+    lines.push(textTable(['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''], rows));
     for (const [pair, n] of omitted) lines.push(`  ${pair}: ${n} more sample points of the same contact circle carry no force (listed with --json)`);
   }
   lines.push('');
   lines.push('Starts');
-  lines.push(table(
+  lines.push(textTable(
     ['start', 'seed', 'status', `tube (${u})`, 'iterations', 'worker crashes retried'],
     r.starts.map((s, k) => [String(k), String(s.seed), s.status, num(s.tube), String(s.iterations), String(s.retries)]),
   ));
@@ -320,10 +320,4 @@ function sci(x: number): string {
 function vec(v: readonly number[], scale = 1): string {
   const s = Math.max(scale, ...v.map(Math.abs));
   return v.map((x) => (Math.abs(x) < DISPLAY_ZERO_REL * s ? '0' : String(Number(x.toPrecision(6))))).join(', ');
-}
-
-function table(head: string[], rows: string[][]): string {
-  const w = head.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k]!.length)));
-  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
-  return [line(head), ...rows.map(line)].join('\n');
 }
