@@ -1,7 +1,8 @@
 // File boundaries of the CLI: read JSON with clear messages, write atomically (temp name, then rename).
-import { renameSync, statSync, writeFileSync, unlinkSync } from 'node:fs';
+import { renameSync, writeFileSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { InputError } from '../src/model/errors.js';
+import { isFile } from '../src/model/jsonFile.js';
 import type { SolveStatus } from '../src/model/types.js';
 import { emit, type Io } from './io.js';
 
@@ -46,14 +47,6 @@ export function writeFilesAtomic(files: readonly (readonly [string, string | Uin
   }
   for (const f of staged) {
     try { if (f.old !== null) unlinkSync(f.old); } catch { /* already gone */ }
-  }
-}
-
-function isFile(path: string): boolean {
-  try {
-    return statSync(path).isFile();
-  } catch {
-    return false;
   }
 }
 
