@@ -18,13 +18,14 @@ export type Registrar = (program: Command, io: Io) => void;
 
 const COMMANDS: Registrar[] = [catalog, measure, inflate, compare, report, fabricate, tracks, play, ui];
 
-export function buildProgram(io: Io): Command {
+/** `writeErr` takes commander's own messages (usage errors, help after an error); subcommands inherit it. */
+export function buildProgram(io: Io, writeErr: (s: string) => void = (s) => io.err(safeText(s))): Command {
   const program = new Command('thickring')
     .description('Thickest tubes for links of round rings, with proof, reports, meshes and contact tracks.')
     .version('0.1.0')
     .exitOverride()
     .showHelpAfterError('(run with --help for usage)')
-    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(safeText(s)) });
+    .configureOutput({ writeOut: (s) => io.out(s), writeErr });
   for (const add of COMMANDS) add(program, io);
   return program;
 }
@@ -33,12 +34,7 @@ export async function main(argv: string[], io: Io = processIo): Promise<number> 
   // With --json every outcome is one JSON object on stdout, errors included: commander's own messages are held back.
   const json = argv.includes('--json') && !argv.includes('--help') && !argv.includes('-h');
   let commanderMessage = '';
-  const program = buildProgram(io);
-  if (json) {
-    const out = { writeOut: (s: string) => io.out(s), writeErr: (s: string) => { commanderMessage += s; } };
-    program.configureOutput(out);
-    for (const c of program.commands) c.configureOutput(out);
-  }
+  const program = json ? buildProgram(io, (s) => { commanderMessage += s; }) : buildProgram(io);
   try {
     await program.parseAsync(argv, { from: 'user' });
     return 0;
