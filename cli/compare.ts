@@ -14,8 +14,8 @@ import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
 import { runPeriodicCompare, type PeriodicCompareResult } from '../src/optimize/periodicCompare.js';
 import { formatSummary } from '../reports/summary.js';
-import { writeFileAtomic } from './files.js';
-import { emit, type Io } from './io.js';
+import { emitResult } from './files.js';
+import type { Io } from './io.js';
 import { addSolveOptions, readSolveOptions, type SolveCliOptions } from './options.js';
 
 /** Most steps of the curve one may ask for (each is a full solve). */
@@ -36,27 +36,15 @@ export function register(program: Command, io: Io): void {
     const sweepPoints = raw['sweepPoints'] === undefined ? undefined : sweepCount(raw['sweepPoints']);
     if (isPeriodicArg(arg)) {
       const run = await runWeaveCompare(arg, options, raw, io);
-      const output = raw['output'] as string | undefined;
-      // A failed comparison writes nothing: a file already at -o stays as it was.
-      const failed = run.result.status === 'failed' || run.result.status === 'infeasible';
-      if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
-      emit(io, raw['json'] === true, run.result, () => [weaveHeader(run.result), ...run.notes, '', formatCompare(run.result, failed ? undefined : output)].join('\n'));
-      if (failed) {
-        throw new Error(`no verified comparison (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
-      }
+      emitResult(io, raw['json'] === true, raw['output'] as string | undefined, 'comparison', run.result,
+        (output) => [weaveHeader(run.result), ...run.notes, '', formatCompare(run.result, output)].join('\n'));
       return;
     }
     for (const flag of ['density', 'wireDiameter']) {
       if (raw[flag] !== undefined) throw new InputError(`--${flag === 'density' ? 'density' : 'wire-diameter'}: applies to weaves only (weave:NAME or a layout with a lattice section); leave it out for ${arg}`);
     }
     const result = await runCompare(arg, options, sweepPoints, io);
-    const output = raw['output'] as string | undefined;
-    const failed = result.status === 'failed' || result.status === 'infeasible';
-    if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(result, null, 2) + '\n');
-    emit(io, raw['json'] === true, result, () => formatCompare(result, failed ? undefined : output));
-    if (failed) {
-      throw new Error(`no verified comparison (status ${result.status}): ${result.verification.messages[0] ?? 'see the result'}`);
-    }
+    emitResult(io, raw['json'] === true, raw['output'] as string | undefined, 'comparison', result, (output) => formatCompare(result, output));
   });
 }
 

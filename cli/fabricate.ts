@@ -189,17 +189,12 @@ function toJson(source: string, out: FabricateOutput, written: { format: MeshFor
       sizes: p.wire,
     },
     touchingPairs: out.touchingPairs,
-    weave: weaveOf(out),
+    weave: out.weave,
     mesh: out.mesh,
     files: written,
     warnings: out.warnings,
     cautions: out.cautions,
   };
-}
-
-function weaveOf(out: FabricateOutput): unknown {
-  const w = out.weave;
-  return w === null ? null : w;
 }
 
 function toText(source: string, out: FabricateOutput, written: { format: MeshFormat; path: string; bytes: number }[], wire: WireSpec | null): string {

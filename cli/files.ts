@@ -1,7 +1,10 @@
 // File boundaries of the CLI: read JSON with clear messages, write atomically (temp name, then rename).
-import { renameSync, statSync, writeFileSync, unlinkSync } from 'node:fs';
+import { renameSync, writeFileSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { InputError } from '../src/model/errors.js';
+import { isFile } from '../src/model/jsonFile.js';
+import type { SolveStatus } from '../src/model/types.js';
+import { emit, type Io } from './io.js';
 
 export { readJsonFile } from '../src/model/jsonFile.js';
 
@@ -47,10 +50,17 @@ export function writeFilesAtomic(files: readonly (readonly [string, string | Uin
   }
 }
 
-function isFile(path: string): boolean {
-  try {
-    return statSync(path).isFile();
-  } catch {
-    return false;
-  }
+/**
+ * Print a solve's result (and write it to `-o` when given) the same way for every solving command. A failed
+ * or infeasible solve writes nothing, so a file already at `-o` stays as it was, and then fails the command.
+ * `text` gets the path written, if any.
+ */
+export function emitResult(
+  io: Io, json: boolean, output: string | undefined, what: string,
+  result: { status: SolveStatus; verification: { messages: string[] } }, text: (written: string | undefined) => string,
+): void {
+  const failed = result.status === 'failed' || result.status === 'infeasible';
+  if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(result, null, 2) + '\n');
+  emit(io, json, result, () => text(failed ? undefined : output));
+  if (failed) throw new Error(`no verified ${what} (status ${result.status}): ${result.verification.messages[0] ?? 'see the result'}`);
 }

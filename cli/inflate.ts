@@ -4,6 +4,7 @@
 import cliProgress from 'cli-progress';
 import type { Command } from 'commander';
 import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
+import { DISPLAY_ZERO_REL, textTable } from '../reports/format.js';
 import { weightFigure } from '../reports/summary.js';
 import { MAX_REPEATS, repeatResult } from '../src/fabricate/repeat.js';
 import { knownOptimum } from '../src/model/catalog.js';
@@ -16,8 +17,8 @@ import type { StartHeartbeat } from '../src/optimize/startLoop.js';
 import type { PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
 import { runPeriodicInflate } from '../src/optimize/periodicRun.js';
 import type { InflateProblem } from '../src/optimize/problem.js';
-import { writeFileAtomic } from './files.js';
-import { emit, type Io } from './io.js';
+import { emitResult } from './files.js';
+import type { Io } from './io.js';
 import { addSolveOptions, readSolveOptions, resolveSymmetry, type SolveCliOptions } from './options.js';
 
 export interface InflateRun {
@@ -37,14 +38,7 @@ export function register(program: Command, io: Io): void {
     const options = readSolveOptions(raw);
     const json = raw['json'] === true;
     const run = isPeriodicArg(arg) ? await runWeaveInflate(arg, options, raw, io) : await runInflate(arg, options, io, raw);
-    const output = raw['output'] as string | undefined;
-    // A failed solve writes nothing: a file already at -o stays as it was.
-    const failed = run.result.status === 'failed' || run.result.status === 'infeasible';
-    if (output !== undefined && !failed) writeFileAtomic(output, JSON.stringify(run.result, null, 2) + '\n');
-    emit(io, json, run.result, () => formatInflate(run, failed ? undefined : output));
-    if (failed) {
-      throw new Error(`no verified configuration (status ${run.result.status}): ${run.result.verification.messages[0] ?? 'see the result'}`);
-    }
+    emitResult(io, json, raw['output'] as string | undefined, 'configuration', run.result, (output) => formatInflate(run, output));
     if (run.result.status === 'stalled') {
       io.err('thickring: warning: the solve stalled before the certificate held; the tube is feasible (checked) but may not be the largest');
     }
@@ -150,8 +144,9 @@ function weaveLines(r: PeriodicSolveResult, u: string): string[] {
   else lines.push(`Cell area ${num(p.cellArea!)} ${u}^2; ${num(p.ringsPerUnitArea!)} rings per square ${u === 'layout units' ? 'layout unit' : u}`);
   const w = p.weight;
   if (w) {
+    const weight = weightFigure(w);
     lines.push(
-      `Weight: ${weightFigure(w).value} ${weightFigure(w).unit} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
+      `Weight: ${weight.value} ${weight.unit} and ${num(w.rings)} rings per ${w.per} at wire diameter ${num(w.wireDiameterMm)} mm, ` +
         `inner diameter ${num(w.innerDiameterMm)} mm (${w.scale}); density ${w.density.gramsPerCm3} g/cm3${w.density.material ? ` (${w.density.material})` : ''}, ${w.density.source}`,
     );
   }
@@ -218,7 +213,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   for (const n of run.notes) lines.push(n);
   lines.push('');
   lines.push('Rings');
-  lines.push(table(
+  lines.push(textTable(
     ['name', `centre (${u})`, 'normal (unit)', `core R (${u})`, `tube r (${u})`, 'aspect ratio (dimensionless)'],
     r.rings.map((x) => [x.name, vec(x.center, scale), vec(x.normal), num(x.radius), num(x.tube), num(x.aspectRatio)]),
   ));
@@ -236,12 +231,12 @@ export function formatInflate(run: InflateRun, output?: string): string {
       }
       rows.push([pair, vec(x.onA, scale), vec(x.onB, scale), num(x.distance), num(x.force), x.continuum ? 'sample of a contact circle' : '']);
     });
-    lines.push(table(['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''], rows));
+    lines.push(textTable(['pair', `on first (${u})`, `on second (${u})`, `core distance (${u})`, 'force', ''], rows));
     for (const [pair, n] of omitted) lines.push(`  ${pair}: ${n} more sample points of the same contact circle carry no force (listed with --json)`);
   }
   lines.push('');
   lines.push('Starts');
-  lines.push(table(
+  lines.push(textTable(
     ['start', 'seed', 'status', `tube (${u})`, 'iterations', 'worker crashes retried'],
     r.starts.map((s, k) => [String(k), String(s.seed), s.status, num(s.tube), String(s.iterations), String(s.retries)]),
   ));
@@ -278,10 +273,10 @@ function progressReporter(io: Io, total: number, unit = 'layout units'): Progres
     bar.start(total, 0, { best: '-', running: '' });
     return {
       update: (e) => {
-        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : `${num(e.bestTube)} (layout units)` });
+        bar.update(e.done, { best: Number.isNaN(e.bestTube) ? '-' : `${num(e.bestTube)} (${unit})` });
         for (const m of e.errors) io.err(`start ${e.start}: ${m}`);
       },
-      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)} (layout units)` }),
+      heartbeat: (e) => bar.update({ running: `start ${e.start}: iteration ${e.iteration}, tube ${num(e.tube)} (${unit})` }),
       stop: () => bar.stop(),
     };
   }
@@ -322,15 +317,7 @@ function sci(x: number): string {
 }
 
 /** Components below DISPLAY_ZERO_REL of the vector's scale are round-off of an exact 0: shown as 0. */
-const DISPLAY_ZERO_REL = 1e-12;
-
 function vec(v: readonly number[], scale = 1): string {
   const s = Math.max(scale, ...v.map(Math.abs));
   return v.map((x) => (Math.abs(x) < DISPLAY_ZERO_REL * s ? '0' : String(Number(x.toPrecision(6))))).join(', ');
-}
-
-function table(head: string[], rows: string[][]): string {
-  const w = head.map((h, k) => Math.max(h.length, ...rows.map((r) => r[k]!.length)));
-  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
-  return [line(head), ...rows.map(line)].join('\n');
 }

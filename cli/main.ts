@@ -2,7 +2,7 @@
 // (2 for bad input, 1 for a failed computation).
 import { Command, CommanderError } from 'commander';
 import { isInputError } from '../src/model/errors.js';
-import { safeLine, safeText } from '../src/model/displayName.js';
+import { safeJson, safeLine, safeText } from '../src/model/displayName.js';
 import { processIo, type Io } from './io.js';
 import { register as catalog } from './catalog.js';
 import { register as measure } from './measure.js';
@@ -18,13 +18,14 @@ export type Registrar = (program: Command, io: Io) => void;
 
 const COMMANDS: Registrar[] = [catalog, measure, inflate, compare, report, fabricate, tracks, play, ui];
 
-export function buildProgram(io: Io): Command {
+/** `writeErr` takes commander's own messages (usage errors, help after an error); subcommands inherit it. */
+export function buildProgram(io: Io, writeErr: (s: string) => void = (s) => io.err(safeText(s))): Command {
   const program = new Command('thickring')
     .description('Thickest tubes for links of round rings, with proof, reports, meshes and contact tracks.')
     .version('0.1.0')
     .exitOverride()
     .showHelpAfterError('(run with --help for usage)')
-    .configureOutput({ writeOut: (s) => io.out(s), writeErr: (s) => io.err(safeText(s)) });
+    .configureOutput({ writeOut: (s) => io.out(s), writeErr });
   for (const add of COMMANDS) add(program, io);
   return program;
 }
@@ -33,35 +34,28 @@ export async function main(argv: string[], io: Io = processIo): Promise<number> 
   // With --json every outcome is one JSON object on stdout, errors included: commander's own messages are held back.
   const json = argv.includes('--json') && !argv.includes('--help') && !argv.includes('-h');
   let commanderMessage = '';
-  const program = buildProgram(io);
-  if (json) {
-    const out = { writeOut: (s: string) => io.out(s), writeErr: (s: string) => { commanderMessage += s; } };
-    program.configureOutput(out);
-    for (const c of program.commands) c.configureOutput(out);
-  }
+  const program = json ? buildProgram(io, (s) => { commanderMessage += s; }) : buildProgram(io);
   try {
     await program.parseAsync(argv, { from: 'user' });
     return 0;
   } catch (e) {
     if (e instanceof CommanderError) {
       if (e.exitCode === 0) return 0;
-      if (json) jsonError(io, (e.message || commanderMessage).replace(/^error: /, '').trim(), optionIn(e.message), 2);
-      return 2;
+      // Without --json commander has already printed its message.
+      if (!json) return 2;
+      return fail(io, json, (e.message || commanderMessage).replace(/^error: /, '').trim(), optionIn(e.message), 2);
     }
-    if (isInputError(e)) {
-      if (json) jsonError(io, e.message, fieldOf(e), 2);
-      else io.err(`thickring: ${safeLine(e.message)}`);
-      return 2;
-    }
+    if (isInputError(e)) return fail(io, json, e.message, fieldOf(e), 2);
     const msg = e instanceof Error ? e.message : String(e);
-    if (json) jsonError(io, `computation failed: ${msg}`, null, 1);
-    else io.err(`thickring: computation failed: ${safeLine(msg)}`);
-    return 1;
+    return fail(io, json, `computation failed: ${msg}`, null, 1);
   }
 }
 
-function jsonError(io: Io, message: string, field: string | null, exitCode: number): void {
-  io.out(JSON.stringify({ error: { message, field, exitCode } }));
+/** The one way an error leaves the program: a JSON object on stdout with --json, else one safe line on stderr. */
+function fail(io: Io, json: boolean, message: string, field: string | null, exitCode: number): number {
+  if (json) io.out(safeJson(JSON.stringify({ error: { message, field, exitCode } })));
+  else io.err(`thickring: ${safeLine(message)}`);
+  return exitCode;
 }
 
 // The field an input error is about: its own `field` when it names one, else the option or file the message starts with.

@@ -2,6 +2,7 @@
 import type { Command } from 'commander';
 import { measureLayout, type MeasureResult } from '../src/analyze/measure.js';
 import { displayName as dn } from '../src/model/displayName.js';
+import { textTable } from '../reports/format.js';
 import { emit, type Io } from './io.js';
 import { loadLayoutFile } from './layoutFile.js';
 
@@ -35,7 +36,7 @@ export function formatMeasure(m: MeasureResult, file: string): string {
   }
   lines.push('');
   lines.push('Rings');
-  lines.push(table(
+  lines.push(textTable(
     ['name', `centre (${u})`, 'normal (unit)', `core R (${u})`, `tube r (${u})`, 'ratio (dimensionless)', `ring allows tube (${u})`, 'aspect ratio (dimensionless)'],
     m.rings.map((r) => [
       dn(r.name), vec(r.center), vec(r.normal), num(r.radius), num(r.tube), num(r.tubeRatio), num(r.tubeLimit), num(r.aspectRatio),
@@ -44,7 +45,7 @@ export function formatMeasure(m: MeasureResult, file: string): string {
   if (m.pairs.length > 0) {
     lines.push('');
     lines.push('Pairs');
-    lines.push(table(
+    lines.push(textTable(
       ['pair', `core distance (${u})`, 'contacts', 'linking', `allows tube (${u})`, 'note'],
       m.pairs.map((p) => [
         `${dn(p.nameA)}-${dn(p.nameB)}${p.shift ? ` [${p.shift.join(',')}]` : ''}`,
@@ -71,11 +72,4 @@ function num(x: number): string {
 
 function vec(v: readonly number[]): string {
   return v.map(num).join(', ');
-}
-
-function table(head: string[], rows: string[][]): string {
-  // A loop, not Math.max(...rows): spreading thousands of rows overflows the call stack.
-  const w = head.map((h, k) => rows.reduce((m, r) => Math.max(m, r[k]!.length), h.length));
-  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
-  return [line(head), ...rows.map(line)].join('\n');
 }

@@ -5,6 +5,7 @@ import { analyzePlay, fmt, type PlayReport } from '../src/analyze/play.js';
 import { CAUTION_TEXT } from '../src/fabricate/cautions.js';
 import { InputError } from '../src/model/errors.js';
 import { readResultFile } from '../src/model/resultFile.js';
+import { textTable } from '../reports/format.js';
 import { emit, type Io } from './io.js';
 
 export function register(program: Command, io: Io): void {
@@ -85,7 +86,7 @@ export function formatPlay(r: PlayReport, file: string): string {
     vec(ring.axes.u),
     vec(ring.axes.v),
   ]);
-  lines.push(table(head, rows));
+  lines.push(textTable(head, rows));
   for (const n of r.notes) lines.push(`Note: ${n}`);
   lines.push('Play is geometric, for perfectly round rings of exact size; printed or bent rings shrink, sag and spring back, and rings that rattle can pinch skin or hair.');
   lines.push(CAUTION_TEXT);
@@ -100,10 +101,4 @@ function positive(text: string, flag: string, what: string): number {
 
 function vec(v: readonly number[]): string {
   return `(${v.map((c) => (Math.abs(c) < 5e-4 ? 0 : c).toFixed(3)).join(', ')})`;
-}
-
-function table(head: string[], rows: string[][]): string {
-  const w = head.map((h, k) => Math.max(h.length, ...rows.map((row) => row[k]!.length)));
-  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
-  return [line(head), ...rows.map(line)].join('\n');
 }

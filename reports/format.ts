@@ -51,3 +51,13 @@ export function vec(v: ArrayLike<number>, digits = 4): string {
   const c = (x: number | undefined) => num(x !== undefined && Math.abs(x) <= DISPLAY_ZERO_REL * big ? 0 : x, digits);
   return `(${c(v[0])}, ${c(v[1])}, ${c(v[2])})`;
 }
+
+/**
+ * A plain-text table: a header row and rows, columns padded to their widest cell, two spaces apart, indented
+ * by two. Widths by a loop, not Math.max(...rows): spreading thousands of rows overflows the call stack.
+ */
+export function textTable(head: string[], rows: string[][]): string {
+  const w = head.map((h, k) => rows.reduce((m, r) => Math.max(m, r[k]!.length), h.length));
+  const line = (cells: string[]): string => '  ' + cells.map((c, k) => c.padEnd(w[k]!)).join('  ').trimEnd();
+  return [line(head), ...rows.map(line)].join('\n');
+}

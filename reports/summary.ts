@@ -2,7 +2,7 @@
 import { displayName } from '../src/model/displayName.js';
 import type { WeaveWeight } from '../src/model/periodicMaterials.js';
 import { optimalityOf, optimalityText, type CompareResult, type SolveResult } from '../src/model/result.js';
-import { DIMENSIONLESS, lengthUnit, num, percent, signed, withUnit } from './format.js';
+import { DIMENSIONLESS, lengthUnit, num, percent, signed, vec, withUnit } from './format.js';
 import { isCompareResult, symmetryLabel } from './kind.js';
 
 export function formatSummary(result: SolveResult | CompareResult): string {
@@ -56,7 +56,7 @@ export function weaveRows(r: SolveResult): [string, string, string][] {
   ];
   r.lattice.vectors.forEach((v, k) => {
     const cells = p.repeats?.[k] ?? 1;
-    rows.push([`lattice vector ${k + 1} (of one cell)`, `${vecText(v.map((x) => x / cells))}, length ${num(Math.hypot(...v) / cells)}`, unit]);
+    rows.push([`lattice vector ${k + 1} (of one cell)`, `${vec(v.map((x) => x / cells))}, length ${num(Math.hypot(...v) / cells)}`, unit]);
   });
   if (p.ringsPerUnitLength !== undefined) rows.push(['rings per length', num(p.ringsPerUnitLength, 4), `per ${per}`]);
   if (p.ringsPerUnitArea !== undefined) rows.push(['rings per area', num(p.ringsPerUnitArea, 4), `per square ${per}`]);
@@ -70,12 +70,6 @@ export function weaveRows(r: SolveResult): [string, string, string][] {
 /** Weight in units a maker uses: g/m for chain, kg/m² for sheet. */
 export function weightFigure(w: Pick<WeaveWeight, 'grams' | 'per'>): { value: string; unit: string } {
   return w.per === 'metre' ? { value: num(w.grams, 4), unit: 'g/m' } : { value: num(w.grams / 1000, 4), unit: 'kg/m²' };
-}
-
-// A vector with components below 1e-12 of its largest shown as 0 (rounding noise, not geometry).
-function vecText(v: ArrayLike<number>): string {
-  const big = Math.max(...Array.from(v, Math.abs));
-  return `(${Array.from(v, (x) => num(Math.abs(x) <= 1e-12 * big ? 0 : x, 4)).join(', ')})`;
 }
 
 function solveSummary(r: SolveResult): string {

@@ -5,6 +5,7 @@ import { InputError } from '../model/errors.js';
 import type { SolveResult } from '../model/result.js';
 import type { SolveStatus, Vec3 } from '../model/types.js';
 import { normalize } from '../model/vec.js';
+import { tightestRing } from '../model/orbit.js';
 import { gaugeAtMost, type GaugeChoice } from './gauge.js';
 import type { SpringBack } from './materials.js';
 import { PRESETS, type ProcessName, type ProcessPreset } from './presets.js';
@@ -166,14 +167,12 @@ export function planFabrication(result: SolveResult, options: PlanOptions): Fabr
   const usesPresetWall = options.minWall === undefined;
   const minWallMarginal = minWallMet && usesPresetWall && thin.printedWireDiameter < preset.minWallRange[1];
   const wire = options.process === 'wire' ? wireGroups(rings, springBack?.percent ?? 0) : null;
-  let tightest = 0;
-  for (let i = 1; i < rings.length; i++) if (rings[i]!.aspectRatio < rings[tightest]!.aspectRatio) tightest = i;
 
   const warnings: string[] = [];
   if (!minWallMet) {
     const base = `ring ${thin.name}'s printed wire diameter ${fmt(thin.printedWireDiameter)} mm is below the minimum wall ${fmt(minWall)} mm for ${preset.label}`;
     if (options.allowThin !== true) {
-      const need = smallestSizeForWall(result, sizedRing, size, springBack, clearance, minWall, thinnestIndex(result));
+      const need = smallestSizeForWall(result, sizedRing, size, springBack, clearance, minWall, thinnest);
       throw new InputError(`--min-wall: ${base}: give ${need} or more, lower --min-wall, or add --allow-thin to make it anyway`);
     }
     warnings.push(`WARNING: ${base} (--allow-thin): the part may break or fail to print`);
@@ -200,8 +199,7 @@ export function planFabrication(result: SolveResult, options: PlanOptions): Fabr
     largestPrintedWireDiameter: 2 * maxPrinted,
     thinnestRing: thinnest,
     thinnestPrintedWireDiameter: thin.printedWireDiameter,
-    aspectRatio: rings[tightest]!.aspectRatio,
-    aspectRatioRing: rings[tightest]!.name,
+    ...tightestRing(rings),
     placement,
     minWallMet,
     minWallMarginal,
@@ -226,12 +224,6 @@ export function flagOf(size: SizeOption): string {
 function thickestRing(result: SolveResult): number {
   let best = 0;
   for (let i = 1; i < result.rings.length; i++) if (result.rings[i]!.tube > result.rings[best]!.tube) best = i;
-  return best;
-}
-
-function thinnestIndex(result: SolveResult): number {
-  let best = 0;
-  for (let i = 1; i < result.rings.length; i++) if (result.rings[i]!.tube < result.rings[best]!.tube) best = i;
   return best;
 }
 

@@ -27,12 +27,12 @@ export function firstUnsafeChar(s: string): string | null {
  */
 export function displayName(name: string): string {
   if (!hasUnsafeChars(name)) return name;
-  return escapeUnsafe(JSON.stringify(name));
+  return safeLine(JSON.stringify(name));
 }
 
 /** One line of output: every unsafe character, newlines included, escaped as \uXXXX. */
 export function safeLine(text: string): string {
-  return escapeUnsafe(text);
+  return text.replace(UNSAFE_ALL, (c) => `\\u${hex4(c)}`);
 }
 
 /** Multi-line output: keeps newlines and tabs, escapes every other unsafe character as \uXXXX. */
@@ -42,15 +42,9 @@ export function safeText(text: string): string {
 
 /**
  * JSON text with the characters JSON.stringify leaves raw but a terminal acts on (DEL, C1 controls,
- * separators, bidi formatting) escaped as \uXXXX: still valid JSON with the same value.
+ * separators, bidi formatting) escaped as \uXXXX: still valid JSON with the same value (the escaping is safeLine's).
  */
-export function safeJson(json: string): string {
-  return json.replace(UNSAFE_ALL, (c) => `\\u${hex4(c)}`);
-}
-
-function escapeUnsafe(s: string): string {
-  return s.replace(UNSAFE_ALL, (c) => `\\u${hex4(c)}`);
-}
+export const safeJson: (json: string) => string = safeLine;
 
 function hex4(c: string): string {
   return c.charCodeAt(0).toString(16).padStart(4, '0');

@@ -1,5 +1,5 @@
 // Reading a JSON input file with one-line messages that name the file and the fix (bad input: exit code 2).
-import { readFileSync } from 'node:fs';
+import { readFileSync, statSync } from 'node:fs';
 import { InputError } from './errors.js';
 
 /**
@@ -18,5 +18,14 @@ export function readJsonFile(path: string, what: string, fix = 'fix the syntax')
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);
     throw new InputError(`${what} file '${path}' is not valid JSON (${msg}): ${fix}`);
+  }
+}
+
+/** True when `path` names an existing regular file (not a folder, not missing). */
+export function isFile(path: string): boolean {
+  try {
+    return statSync(path).isFile();
+  } catch {
+    return false;
   }
 }

@@ -2,9 +2,10 @@
 // section. The result is the cell, the lattice and the pattern of linked image pairs the solve must keep,
 // after checking that the pattern holds together (every ring linked to something, and cells linked to
 // their neighbours along every lattice vector, else the weave falls apart).
-import { readFileSync, statSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { InputError } from './errors.js';
+import { isFile } from './jsonFile.js';
 import { checkSolveSize, layoutFromRings, parseLayout } from './layout.js';
 import { periodicKind, periodicLinks, sameLinks, type PeriodicKind, type PeriodicLink } from './periodic.js';
 import type { Lattice, Layout, Ring } from './types.js';
@@ -140,12 +141,4 @@ function withRadii(layout: PeriodicLayout, radii: number[], source: string): Per
   const extras: { units?: string; lattice: Lattice } = { lattice: layout.lattice };
   if (layout.units !== undefined) extras.units = layout.units;
   return layoutFromRings(rings, extras, `${source} with --radii ${radii.join(',')}`) as PeriodicLayout;
-}
-
-function isFile(path: string): boolean {
-  try {
-    return statSync(path).isFile();
-  } catch {
-    return false;
-  }
 }

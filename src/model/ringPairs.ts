@@ -60,7 +60,7 @@ function shiftedPairs(layout: Pick<Layout, 'rings' | 'lattice'>, margin: number,
   const n = rings.length;
   if (vectors.length === 0) return;
   const reach = latticeReach(layout, margin);
-  for (const shift of shifts(reach)) {
+  for (const shift of latticeShifts(reach)) {
     const offset = combine(vectors, shift);
     const mirrorFirst = shift.find((s) => s !== 0)! > 0;
     for (let i = 0; i < n; i++) {
@@ -112,8 +112,8 @@ export function combine(vectors: Vec3[], shift: number[]): Vec3 {
   return o;
 }
 
-/** Every non-zero coefficient vector with |s_k| <= reach[k]. */
-export function shifts(reach: number[]): number[][] {
+/** Every non-zero coefficient vector with |s_k| <= reach[k] (the lattice copies a pair search visits). */
+export function latticeShifts(reach: readonly number[]): number[][] {
   let out: number[][] = [[]];
   for (const m of reach) {
     const next: number[][] = [];

@@ -1,12 +1,11 @@
 // The SPEC|LAYOUT argument of the solving commands: a catalogue spec (hopf, chain:3, ...) or the path
 // of a layout file. Either way the result is a layout plus the signed linking matrix the solve must
 // keep, after checking that the arrangement is a link that holds together at all.
-import { statSync } from 'node:fs';
 import { basename } from 'node:path';
 import { connectedness, linkingMatrix } from '../topology/index.js';
 import { catalogLayout, looksLikeCatalogSpec, parseCatalogSpec, type CatalogSpec } from './catalog.js';
 import { InputError } from './errors.js';
-import { readJsonFile } from './jsonFile.js';
+import { isFile, readJsonFile } from './jsonFile.js';
 import { checkSolveSize, layoutFromRings, parseLayout } from './layout.js';
 import type { Layout } from './types.js';
 
@@ -140,12 +139,4 @@ function withRadii(layout: Layout, radii: number[], source: string): Layout {
   if (layout.units !== undefined) extras.units = layout.units;
   if (layout.symmetry !== undefined) extras.symmetry = layout.symmetry;
   return layoutFromRings(rings, extras, `${source} with --radii ${radii.join(',')}`);
-}
-
-function isFile(path: string): boolean {
-  try {
-    return statSync(path).isFile();
-  } catch {
-    return false;
-  }
 }

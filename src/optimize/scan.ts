@@ -7,7 +7,7 @@
 // every margin the local model, polish and certificate look within (trustRegion.ts: at most MARGIN_BOXES step
 // boxes of BOX_MAX_REL min R, i.e. 2 min R), so it can neither bind the tube nor enter a constraint set.
 import { CONTACT_STRIDE, MAX_CONTACTS, circleContacts, lastContinuum, nearPairs, type ContinuumKind } from '../kernel/index.js';
-import { combine, latticeReach, shifts as latticeShifts } from '../model/ringPairs.js';
+import { combine, latticeReach, latticeShifts } from '../model/ringPairs.js';
 import type { RingOrbits } from '../model/symmetry.js';
 import type { Lattice, Ring, Vec3 } from '../model/types.js';
 import { linkingNumberRaw } from '../topology/linking.js';
