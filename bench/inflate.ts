@@ -13,6 +13,7 @@ import type { InflateProblem, SolveOutcome } from '../src/optimize/problem.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
+import { median } from './stats.js';
 import type { Vec3 } from '../src/model/types.js';
 
 const SEED = 20261201;
@@ -33,11 +34,6 @@ function cpuSince(c0: NodeJS.CpuUsage): number {
   const d = process.cpuUsage(c0);
   return (d.user + d.system) / 1e6;
 }
-
-const median = (xs: number[]): number => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)]!;
-};
 
 interface Row {
   case: string;

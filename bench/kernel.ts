@@ -5,17 +5,13 @@ import { Worker } from 'node:worker_threads';
 import { circleContacts, CONTACT_STRIDE, MAX_CONTACTS, ringDistance } from '../src/kernel/index.js';
 import { refMinima } from '../tests/reference/bruteCircle.js';
 import { makePairs, PAIR_STRIDE } from './kernelWorkload.js';
+import { median } from './stats.js';
 
 const SEED = 20261201;
 const PAIRS = 20000;
 const REPEATS = 7;
 const REFERENCE_PAIRS = 300;
 const TARGET_ACCURACY = 1e-9;
-
-const median = (xs: number[]): number => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)]!;
-};
 
 function circleOf(p: Float64Array, o: number) {
   return { center: [p[o]!, p[o + 1]!, p[o + 2]!], normal: [p[o + 3]!, p[o + 4]!, p[o + 5]!], radius: p[o + 6]! };

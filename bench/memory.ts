@@ -10,6 +10,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { main } from '../cli/main.js';
 import { MAX_LAYOUT_RINGS, MAX_SOLVE_RINGS } from '../src/model/layout.js';
+import { median } from './stats.js';
 
 interface Sample {
   code: number;
@@ -54,11 +55,6 @@ function once(args: string[]): Sample {
   } catch {
     throw new Error(`child failed (${p.status}): ${p.stderr.slice(0, 400)}`);
   }
-}
-
-function median(xs: number[]): number {
-  const s = xs.slice().sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)]!;
 }
 
 function bench(label: string, args: string[], repeats: number): void {

@@ -10,6 +10,7 @@ import { pairPlan, scanPairs } from '../src/optimize/scan.js';
 import { trivialOrbits } from '../src/model/symmetry.js';
 import type { Ring } from '../src/model/types.js';
 import { linkingMatrix } from '../src/topology/index.js';
+import { median } from './stats.js';
 
 const SIZES = [64, 256, 1024];
 /** The all-pairs baseline is O(N²) kernel calls: above this N it is left out (minutes per pass). */
@@ -20,7 +21,6 @@ const repeatsArg = args.indexOf('--repeats');
 const REPEATS = repeatsArg >= 0 ? Math.max(1, Number(args[repeatsArg + 1])) : 5;
 const json = args.includes('--json');
 
-const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 /** 2-in-1 chain of unit rings 1.5 apart along x, planes alternating xy / xz: ring i passes through ring i ± 1. */
 function chain(n: number): Ring[] {

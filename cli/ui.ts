@@ -1,11 +1,12 @@
 // `thickring ui [SPEC|LAYOUT|RESULT] [--port N] [--open] [--export DIR]`: the interactive page on a local
 // server (cli/uiServer.ts) bound to 127.0.0.1, or written out as static files with --export.
 import { spawn } from 'node:child_process';
-import { readFileSync, statSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import type { Command } from 'commander';
 import { looksLikeCatalogSpec, parseCatalogSpec } from '../src/model/catalog.js';
 import { InputError } from '../src/model/errors.js';
+import { isFile } from '../src/model/jsonFile.js';
 import { parseLayout } from '../src/model/layout.js';
 import { RESULT_FORMAT } from '../src/model/result.js';
 import { parseResult } from '../src/model/resultFile.js';
@@ -117,13 +118,6 @@ function describe(p: Preload): string {
   return p.kind === 'spec' ? p.spec : p.name;
 }
 
-function isFile(path: string): boolean {
-  try {
-    return statSync(path).isFile();
-  } catch {
-    return false;
-  }
-}
 
 /** Best effort: the page's address is printed either way. */
 function openBrowser(url: string, io: Io): void {
