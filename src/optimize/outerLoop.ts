@@ -13,6 +13,7 @@
 import type { CertifyOutput } from './certificate.js';
 import type { Constraint } from './constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
+import { carryMultipliers, sqpStep, type SqpStepInput } from './step/sqpStep.js';
 import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
 import type { SolveOutcome } from './problem.js';
 import {
@@ -56,6 +57,8 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
   tMax: number;
   finalTol: number;
   algorithm: InnerAlgorithm;
+  /** 'sqp': the second-order step (step/sqpStep.ts); 'proximal': the first-order proximal QP (localStep.ts). */
+  stepMethod: StepMethod;
   maxIterations: number;
   maxEscapes: number;
   /** Escape step sizes tried in turn (relative to `scale`). */
@@ -69,6 +72,8 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
   polish(state: S): Polished<S> | null;
   assess(state: S, polished: Polished<S> | null): A;
 }
+
+export type StepMethod = 'sqp' | 'proximal';
 
 export interface LoopRun<A> {
   /** The reported point (the best polished one unless the loop ended higher without one). */
@@ -95,6 +100,8 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   let escapes = 0;
   let failures = 0;
   let stopReason = 'iteration limit';
+  /** The last SQP step's constraints and multipliers, whose curvature the next step's model uses. */
+  let carried: { cons: Constraint[]; lambda: Float64Array } | null = null;
   const record = (): void => {
     history.push(state.t);
     loop.onIteration?.(iterations, state.t);
@@ -116,7 +123,18 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     const chart = loop.chart(state);
     const box = Math.min(delta, BOX_MAX_REL * scale);
     const cons = chart.constraints(MARGIN_BOXES * box);
-    const step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);
+    let step: { ok: boolean; z: Float64Array; tau: number };
+    let sqpInput: SqpStepInput | null = null;
+    if (loop.stepMethod === 'sqp') {
+      const lambda = carried ? carryMultipliers(carried.cons, carried.lambda, cons) : new Float64Array(cons.length);
+      const W = lagrangianEntries(chart, cons, lambda);
+      sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline };
+      const s = sqpStep(sqpInput);
+      if (s.ok) carried = { cons, lambda: s.lambda };
+      step = s;
+    } else {
+      step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);
+    }
     iterations++;
     if (!step.ok) {
       failures++;
@@ -170,8 +188,22 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
         break;
       }
     }
-    const next = chart.at(step.z);
-    const ratio = (next.t - state.t) / predicted;
+    let next = chart.at(step.z);
+    let ratio = (next.t - state.t) / predicted;
+    if (sqpInput !== null && ratio < GROW_RATIO) {
+      // Second-order correction: the struts that limit the tube after the step are those whose own curvature
+      // shortened them, which the force-weighted model averages away; shift each row by its curvature
+      // at the step and solve again (Fletcher, Practical Methods of Optimization, 2nd ed., §14.4).
+      const corrected = secondOrderCorrection(chart, sqpInput, step.z);
+      if (corrected !== null) {
+        const alt = chart.at(corrected);
+        const altRatio = (alt.t - state.t) / predicted;
+        if (altRatio > ratio) {
+          next = alt;
+          ratio = altRatio;
+        }
+      }
+    }
     if (next.t > 0 && ratio >= ACCEPT_RATIO && loop.admissible(next)) {
       state = next;
       if (ratio >= GROW_RATIO) delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
@@ -197,4 +229,57 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
 export function bindingContacts<C extends Constraint>(active: readonly C[], lambda: Float64Array): C[] {
   const lmax = Math.max(0, ...lambda);
   return active.filter((_, k) => lambda[k]! > BINDING_FORCE_REL * lmax);
+}
+
+/** Upper-triangle entries of W = Σ λ_k ∇²g_k at the chart's origin (none where the chart cannot give it). */
+function lagrangianEntries<C extends Constraint, P>(
+  chart: LoopChart<{ t: number }, C, P>, cons: readonly Constraint[], lambda: Float64Array,
+): { i: number[]; j: number[]; v: number[] } {
+  const out = { i: [] as number[], j: [] as number[], v: [] as number[] };
+  const keep: Constraint[] = [], lam: number[] = [];
+  cons.forEach((c, k) => {
+    if (lambda[k]! > 0 && (c.kind === 'strut' || c.kind === 'sample')) {
+      keep.push(c);
+      lam.push(lambda[k]!);
+    }
+  });
+  if (keep.length === 0 || !chart.model.hessian) return out;
+  const n = chart.nFree;
+  const posed = chart.model.posedAt(new Float64Array(n));
+  const W = chart.model.hessian(keep as unknown as C[], posed, Float64Array.from(lam));
+  if (!W) return out;
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      const v = i === j ? W[i * n + i]! : 0.5 * (W[i * n + j]! + W[j * n + i]!);
+      if (v !== 0) {
+        out.i.push(i);
+        out.j.push(j);
+        out.v.push(v);
+      }
+    }
+  }
+  return out;
+}
+
+/**
+ * The step again with every row shifted by what the linearisation missed at z (g_k(z) - g_k - G_k·z), or
+ * null when a strut was lost at z or the QP failed.
+ */
+function secondOrderCorrection<C extends Constraint, P>(
+  chart: LoopChart<{ t: number }, C, P>, input: SqpStepInput, z: Float64Array,
+): Float64Array | null {
+  const n = chart.nFree;
+  const posed = chart.model.posedAt(z);
+  const shift = new Float64Array(input.cons.length);
+  for (let k = 0; k < input.cons.length; k++) {
+    const con = input.cons[k]!;
+    if (con.kind !== 'strut' && con.kind !== 'sample') continue;
+    const g = chart.model.evaluate(chart.model.copy(con as C), posed, false);
+    if (!Number.isFinite(g)) return null;
+    let lin = con.g;
+    for (let i = 0; i < n; i++) lin += con.grad[i]! * z[i]!;
+    shift[k] = g - lin;
+  }
+  const s = sqpStep({ ...input, shift });
+  return s.ok ? s.z : null;
 }

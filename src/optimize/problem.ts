@@ -30,6 +30,8 @@ export interface SolveOptions {
   perturbation: number;
   /** Inner solver of each local step (nlopt-js); the pool retries with another when a worker dies. */
   algorithm?: 'slsqp' | 'mma' | 'ccsaq';
+  /** The outer loop's step: 'sqp' (second order, step/sqpStep.ts) or 'proximal' (first order, localStep.ts). */
+  step?: 'sqp' | 'proximal';
   /**
    * Saddles stepped off at most (default 3, trustRegion.ts MAX_ESCAPES); 0 stops at the first polished
    * Kuhn–Tucker point, saddle or not.

@@ -1,0 +1,310 @@
+// A primal-dual interior-point method for the sparse QP of one SQP step:
+//
+//   minimise ½ xᵀ P x + qᵀ x   subject to   C x <= h  (sparse rows),   l <= x <= u.
+//
+// Mehrotra's predictor–corrector (Mehrotra, SIAM J. Optim. 2(4), 1992; Nocedal & Wright, Numerical
+// Optimization, 2nd ed., §16.6) from an infeasible start. Each iteration solves one reduced Newton system
+//
+//   [ P + Σ + δI    Cᵀ      ] [dx]   [r1]
+//   [ C            −S Y⁻¹  ] [dy] = [r2],      Σ = W_l S_l⁻¹ + W_u S_u⁻¹ (the bounds, eliminated),
+//
+// which is quasi-definite whenever P + Σ + δI is positive definite, so it has an LDLᵀ factorisation with a
+// diagonal D in any symmetric order (Vanderbei, SIAM J. Optim. 5(1), 1995): the ordering and elimination
+// tree are computed once per QP (step/sparseLdl.ts) and each iteration refactors numerically, at a cost
+// linear in the rings for a chain or a necklace. P need not be convex (it is the Lagrangian Hessian of the
+// tube problem plus the trust-region term); the inertia of the factor tells (Sylvester's law): n positive
+// pivots and m negative ones mean P is positive definite on the null space of the nearly active rows, else
+// δ grows until they are — the inertia correction of Wächter & Biegler (Math. Program. 106, 2006, IPOPT).
+// A QP that does not converge within its iteration or time budget is a failed step, never a hang.
+import { analyseLdl, factorLdl, SymTriplets, type LdlFactor, type SymCsc } from './sparseLdl.js';
+
+export interface SparseQp {
+  /** Number of variables. */
+  n: number;
+  /** Upper-triangle entries of P (i <= j), duplicates summed. */
+  pI: Int32Array | number[];
+  pJ: Int32Array | number[];
+  pV: Float64Array | number[];
+  q: Float64Array;
+  /** Rows of C (compressed sparse rows) and their right-hand sides. */
+  rowPtr: Int32Array;
+  colIdx: Int32Array;
+  rowVal: Float64Array;
+  h: Float64Array;
+  /** Finite bounds, lower[i] < upper[i]. */
+  lower: Float64Array;
+  upper: Float64Array;
+}
+
+export interface QpOptions {
+  /** Relative accuracy of the residuals and the complementarity gap (default 1e-12). */
+  tol?: number;
+  maxIterations?: number;
+  /** Date.now() milliseconds after which the solve gives up (a failed step). */
+  deadline?: number;
+}
+
+export interface QpSolution {
+  ok: boolean;
+  x: Float64Array;
+  /** Multipliers of the rows C x <= h (>= 0). */
+  y: Float64Array;
+  iterations: number;
+  /** Largest δ the inertia correction added to P's diagonal (0: the QP was convex where it mattered). */
+  regularisation: number;
+  message: string;
+}
+
+const DEFAULT_TOL = 1e-12;
+const DEFAULT_MAX_ITERATIONS = 80;
+/** Fraction of the way to the boundary a step may go. */
+const TO_BOUNDARY = 0.995;
+/** First inertia correction (relative to the largest |P_ii|, at least 1), its growth, and its decay between iterations. */
+const DELTA_FIRST_REL = 1e-8;
+const DELTA_GROWTH = 10;
+const DELTA_DECAY = 1 / 3;
+const DELTA_MAX_REL = 1e12;
+/**
+ * Mean complementarity product at convergence, relative to tol and the narrowest bound width: an active
+ * row's slack is about μ over its multiplier, so this keeps its error far below the step's own accuracy.
+ */
+const GAP_REL = 1e-2;
+/**
+ * Pivots counted as zero, relative to the largest diagonal entry: the barrier terms spread the diagonal
+ * over some 30 orders of magnitude near the end, and a quasi-definite matrix has no zero pivot, so only a
+ * pivot lost to rounding altogether counts.
+ */
+const PIVOT_ZERO_REL = 1e-40;
+
+export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSolution {
+  const tol = options.tol ?? DEFAULT_TOL;
+  const maxIt = options.maxIterations ?? DEFAULT_MAX_ITERATIONS;
+  const n = qp.n, m = qp.h.length;
+  const N = n + m;
+
+  // The pattern of the reduced system: P, C (as the upper-right block) and every diagonal entry.
+  const trip = new SymTriplets(N);
+  for (let k = 0; k < qp.pV.length; k++) trip.add(qp.pI[k]!, qp.pJ[k]!, qp.pV[k]!);
+  for (let r = 0; r < m; r++) for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) trip.add(qp.colIdx[p]!, n + r, qp.rowVal[p]!);
+  const firstDiag = trip.length;
+  for (let i = 0; i < N; i++) trip.add(i, i, 0);
+  const { matrix: K, slot } = trip.toCsc();
+  const base = Float64Array.from(K.values);
+  const diagSlot = slot.subarray(firstDiag, firstDiag + N);
+  const pattern = analyseLdl(K);
+  let pDiagMax = 1;
+  for (let k = 0; k < qp.pV.length; k++) if (qp.pI[k] === qp.pJ[k]) pDiagMax = Math.max(pDiagMax, Math.abs(qp.pV[k]!));
+
+  const { lower: l, upper: u, h, q } = qp;
+  // Start: x at the bound-clipped origin, slacks and multipliers at a size set by the data.
+  const x = new Float64Array(n);
+  const width = new Float64Array(n);
+  let hScale = 0;
+  for (let i = 0; i < n; i++) {
+    width[i] = u[i]! - l[i]!;
+    x[i] = Math.min(Math.max(0, l[i]! + 0.25 * width[i]!), u[i]! - 0.25 * width[i]!);
+  }
+  for (let r = 0; r < m; r++) hScale = Math.max(hScale, Math.abs(h[r]!));
+  const cx = new Float64Array(m);
+  mulC(qp, x, cx);
+  const s = new Float64Array(m), y = new Float64Array(m);
+  const sl = new Float64Array(n), wl = new Float64Array(n), su = new Float64Array(n), wu = new Float64Array(n);
+  let boxScale = 0, minWidth = Infinity;
+  for (let i = 0; i < n; i++) {
+    boxScale = Math.max(boxScale, width[i]!);
+    minWidth = Math.min(minWidth, width[i]!);
+  }
+  const s0 = 0.1 * Math.max(Math.min(hScale, boxScale), 1e-8 * Math.max(hScale, boxScale, 1e-300));
+  for (let r = 0; r < m; r++) {
+    s[r] = Math.max(h[r]! - cx[r]!, s0);
+    y[r] = 1;
+  }
+  for (let i = 0; i < n; i++) {
+    sl[i] = Math.max(x[i]! - l[i]!, 0.25 * width[i]!);
+    su[i] = Math.max(u[i]! - x[i]!, 0.25 * width[i]!);
+    wl[i] = 1;
+    wu[i] = 1;
+  }
+
+  const qScale = 1 + maxAbs(q);
+  const rd = new Float64Array(n), rp = new Float64Array(m), rl = new Float64Array(n), ru = new Float64Array(n);
+  const rhs = new Float64Array(N), sol = new Float64Array(N);
+  const dx = new Float64Array(n), dy = new Float64Array(m), ds = new Float64Array(m);
+  const dsl = new Float64Array(n), dwl = new Float64Array(n), dsu = new Float64Array(n), dwu = new Float64Array(n);
+  const aff = { ds: new Float64Array(m), dy: new Float64Array(m), dsl: new Float64Array(n), dwl: new Float64Array(n), dsu: new Float64Array(n), dwu: new Float64Array(n) };
+  const ctY = new Float64Array(n), px = new Float64Array(n);
+  const affOut = { dx: new Float64Array(n), ...aff };
+  const nComp = m + 2 * n;
+  let delta = 0, deltaUsed = 0;
+  let it = 0;
+  let message = 'iteration limit';
+  let ok = false;
+
+  for (; it < maxIt; it++) {
+    if (options.deadline !== undefined && Date.now() > options.deadline) {
+      message = 'time limit';
+      break;
+    }
+    // Residuals.
+    mulP(qp, x, px);
+    mulCt(qp, y, ctY);
+    mulC(qp, x, cx);
+    let gap = 0;
+    for (let i = 0; i < n; i++) {
+      rd[i] = px[i]! + q[i]! + ctY[i]! - wl[i]! + wu[i]!;
+      rl[i] = x[i]! - l[i]! - sl[i]!;
+      ru[i] = u[i]! - x[i]! - su[i]!;
+      gap += sl[i]! * wl[i]! + su[i]! * wu[i]!;
+    }
+    for (let r = 0; r < m; r++) {
+      rp[r] = cx[r]! + s[r]! - h[r]!;
+      gap += s[r]! * y[r]!;
+    }
+    const mu = gap / Math.max(nComp, 1);
+    const primalRes = Math.max(maxAbs(rp) / (1 + hScale), maxAbs(rl) / (1 + boxScale), maxAbs(ru) / (1 + boxScale));
+    const dualRes = maxAbs(rd) / qScale;
+    if (primalRes <= tol && dualRes <= tol && mu <= GAP_REL * tol * minWidth) {
+      ok = true;
+      message = `converged in ${it} iterations`;
+      break;
+    }
+    if (!Number.isFinite(gap) || !Number.isFinite(primalRes) || !Number.isFinite(dualRes)) {
+      message = 'non-finite iterate';
+      break;
+    }
+
+    // Factor, correcting the inertia.
+    let factor: LdlFactor | null = null;
+    delta = delta > 0 ? Math.max(delta * DELTA_DECAY, DELTA_FIRST_REL * pDiagMax) : 0;
+    for (;;) {
+      const vals = K.values;
+      vals.set(base);
+      for (let i = 0; i < n; i++) vals[diagSlot[i]!] = vals[diagSlot[i]!]! + wl[i]! / sl[i]! + wu[i]! / su[i]! + delta;
+      for (let r = 0; r < m; r++) vals[diagSlot[n + r]!] = vals[diagSlot[n + r]!]! - s[r]! / y[r]!;
+      const f = factorLdl(pattern, K, PIVOT_ZERO_REL);
+      if (f.zero === 0 && f.positive === n && f.negative === m) {
+        factor = f;
+        break;
+      }
+      delta = delta === 0 ? DELTA_FIRST_REL * pDiagMax : delta * DELTA_GROWTH;
+      if (delta > DELTA_MAX_REL * pDiagMax) break;
+    }
+    if (factor === null) {
+      message = 'the Newton system could not be made quasi-definite';
+      break;
+    }
+    deltaUsed = Math.max(deltaUsed, delta);
+
+    // Predictor (affine scaling): σ = 0.
+    const solveDir = (
+      sigmaMu: number, corr: typeof aff | null,
+      out: { dx: Float64Array; dy: Float64Array; ds: Float64Array; dsl: Float64Array; dwl: Float64Array; dsu: Float64Array; dwu: Float64Array },
+    ): void => {
+      // Complementarity targets: r_c = s∘y - σμ (+ Δs_aff∘Δy_aff in the corrector).
+      for (let i = 0; i < n; i++) {
+        const rcl = sl[i]! * wl[i]! - sigmaMu + (corr ? corr.dsl[i]! * corr.dwl[i]! : 0);
+        const rcu = su[i]! * wu[i]! - sigmaMu + (corr ? corr.dsu[i]! * corr.dwu[i]! : 0);
+        rhs[i] = -rd[i]! - (rcl + wl[i]! * rl[i]!) / sl[i]! + (rcu + wu[i]! * ru[i]!) / su[i]!;
+        // Stash for back-substitution.
+        out.dsl[i] = rcl;
+        out.dsu[i] = rcu;
+      }
+      for (let r = 0; r < m; r++) {
+        const rc = s[r]! * y[r]! - sigmaMu + (corr ? corr.ds[r]! * corr.dy[r]! : 0);
+        rhs[n + r] = -rp[r]! + rc / y[r]!;
+        out.ds[r] = rc;
+      }
+      factor!.solve(rhs, sol);
+      for (let i = 0; i < n; i++) out.dx[i] = sol[i]!;
+      for (let r = 0; r < m; r++) out.dy[r] = sol[n + r]!;
+      // ds = -rp - C dx;  dsl = dx + rl;  dwl = -(rcl + wl dsl)/sl;  dsu = -dx + ru;  dwu = -(rcu + wu dsu)/su.
+      mulC(qp, out.dx, cx);
+      for (let r = 0; r < m; r++) out.ds[r] = -rp[r]! - cx[r]!;
+      for (let i = 0; i < n; i++) {
+        const rcl = out.dsl[i]!, rcu = out.dsu[i]!;
+        out.dsl[i] = out.dx[i]! + rl[i]!;
+        out.dwl[i] = -(rcl + wl[i]! * out.dsl[i]!) / sl[i]!;
+        out.dsu[i] = -out.dx[i]! + ru[i]!;
+        out.dwu[i] = -(rcu + wu[i]! * out.dsu[i]!) / su[i]!;
+      }
+    };
+    solveDir(0, null, affOut);
+    const aAff = Math.min(
+      stepToBoundary(s, affOut.ds, 1), stepToBoundary(y, affOut.dy, 1), stepToBoundary(sl, affOut.dsl, 1),
+      stepToBoundary(wl, affOut.dwl, 1), stepToBoundary(su, affOut.dsu, 1), stepToBoundary(wu, affOut.dwu, 1),
+    );
+    let gapAff = 0;
+    for (let r = 0; r < m; r++) gapAff += (s[r]! + aAff * affOut.ds[r]!) * (y[r]! + aAff * affOut.dy[r]!);
+    for (let i = 0; i < n; i++) {
+      gapAff += (sl[i]! + aAff * affOut.dsl[i]!) * (wl[i]! + aAff * affOut.dwl[i]!);
+      gapAff += (su[i]! + aAff * affOut.dsu[i]!) * (wu[i]! + aAff * affOut.dwu[i]!);
+    }
+    const sigma = Math.min(1, (gapAff / Math.max(gap, 1e-300)) ** 3);
+    // Corrector.
+    const dir = { dx, dy, ds, dsl, dwl, dsu, dwu };
+    solveDir(sigma * mu, affOut, dir);
+    const alpha = Math.min(
+      1,
+      TO_BOUNDARY * Math.min(
+        stepToBoundary(s, ds, Infinity), stepToBoundary(y, dy, Infinity), stepToBoundary(sl, dsl, Infinity),
+        stepToBoundary(wl, dwl, Infinity), stepToBoundary(su, dsu, Infinity), stepToBoundary(wu, dwu, Infinity),
+      ),
+    );
+    for (let i = 0; i < n; i++) {
+      x[i] = x[i]! + alpha * dx[i]!;
+      sl[i] = sl[i]! + alpha * dsl[i]!;
+      wl[i] = wl[i]! + alpha * dwl[i]!;
+      su[i] = su[i]! + alpha * dsu[i]!;
+      wu[i] = wu[i]! + alpha * dwu[i]!;
+    }
+    for (let r = 0; r < m; r++) {
+      s[r] = s[r]! + alpha * ds[r]!;
+      y[r] = y[r]! + alpha * dy[r]!;
+    }
+  }
+  if (!ok && it >= maxIt) message = `no convergence in ${maxIt} iterations`;
+  return { ok, x, y, iterations: it, regularisation: deltaUsed, message };
+}
+
+// --- helpers ---
+
+/** Largest α in (0, cap] with v + α dv >= 0 (cap when no component decreases). */
+function stepToBoundary(v: Float64Array, dv: Float64Array, cap: number): number {
+  let a = cap;
+  for (let i = 0; i < v.length; i++) if (dv[i]! < 0) a = Math.min(a, -v[i]! / dv[i]!);
+  return a;
+}
+
+function maxAbs(v: ArrayLike<number>): number {
+  let a = 0;
+  for (let i = 0; i < v.length; i++) a = Math.max(a, Math.abs(v[i]!));
+  return a;
+}
+
+function mulC(qp: SparseQp, x: ArrayLike<number>, out: Float64Array): void {
+  for (let r = 0; r < qp.h.length; r++) {
+    let v = 0;
+    for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) v += qp.rowVal[p]! * x[qp.colIdx[p]!]!;
+    out[r] = v;
+  }
+}
+
+function mulCt(qp: SparseQp, y: ArrayLike<number>, out: Float64Array): void {
+  out.fill(0);
+  for (let r = 0; r < qp.h.length; r++) {
+    const yr = y[r]!;
+    if (yr === 0) continue;
+    for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) out[qp.colIdx[p]!] = out[qp.colIdx[p]!]! + qp.rowVal[p]! * yr;
+  }
+}
+
+function mulP(qp: SparseQp, x: ArrayLike<number>, out: Float64Array): void {
+  out.fill(0);
+  for (let k = 0; k < qp.pV.length; k++) {
+    const i = qp.pI[k]!, j = qp.pJ[k]!, v = qp.pV[k]!;
+    out[i] = out[i]! + v * x[j]!;
+    if (i !== j) out[j] = out[j]! + v * x[i]!;
+  }
+}
+
+export type { SymCsc };

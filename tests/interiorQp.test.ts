@@ -1,0 +1,131 @@
+// The interior-point QP of the SQP step (src/optimize/step/interiorQp.ts) against HiGHS, a general-purpose
+// LP/QP solver (the `highs` package, an independent reference library), on seeded random sparse convex QPs
+// of the step's shape; and its nonconvex behaviour against closed forms.
+import { describe, expect, it } from 'vitest';
+import type { Highs } from 'highs';
+import { solveQpInterior, type SparseQp } from '../src/optimize/step/interiorQp.js';
+
+function rng(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** A random QP like a step's: a banded PD Hessian, sparse rows through x = 0 with h >= 0, a box. */
+function randomQp(seed: number, n: number, m: number): SparseQp {
+  const r = rng(seed);
+  const pI: number[] = [], pJ: number[] = [], pV: number[] = [];
+  for (let i = 0; i < n; i++) {
+    pI.push(i); pJ.push(i); pV.push(1 + 2 * r());
+    if (i + 1 < n) { pI.push(i); pJ.push(i + 1); pV.push(0.4 * (r() - 0.5)); }
+  }
+  const q = Float64Array.from({ length: n }, () => 2 * r() - 1);
+  const rowPtr = new Int32Array(m + 1);
+  const cols: number[] = [], vals: number[] = [];
+  const h = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    const used = new Set<number>();
+    const nnz = 1 + Math.floor(r() * Math.min(12, n));
+    for (let e = 0; e < nnz; e++) used.add(Math.floor(r() * n));
+    for (const c of [...used].sort((a, b) => a - b)) { cols.push(c); vals.push(2 * r() - 1); }
+    rowPtr[k + 1] = cols.length;
+    // A third of the rows pass through the start (h = 0), like touching struts.
+    h[k] = r() < 0.33 ? 0 : 0.5 * r();
+  }
+  const lower = new Float64Array(n).fill(-0.5), upper = new Float64Array(n).fill(0.5);
+  return { n, pI, pJ, pV, q, rowPtr, colIdx: Int32Array.from(cols), rowVal: Float64Array.from(vals), h, lower, upper };
+}
+
+async function highsSolve(qp: SparseQp): Promise<{ x: Float64Array; obj: number }> {
+  const highs = ((await import('highs')) as unknown as { default: () => Promise<Highs> }).default;
+  const H = await highs();
+  const n = qp.n;
+  // HiGHS takes the lower triangle by columns: column j holds rows i >= j; our entries are i <= j, so swap.
+  const byCol: [number, number, number][][] = Array.from({ length: n }, () => []);
+  for (let k = 0; k < qp.pV.length; k++) byCol[qp.pI[k]!]!.push([qp.pJ[k]!, qp.pI[k]!, qp.pV[k]!]);
+  const hStarts = new Int32Array(n + 1), hIdx: number[] = [], hVal: number[] = [];
+  byCol.forEach((col, j) => {
+    col.sort((a, b) => a[0] - b[0]);
+    for (const [i, , v] of col) { hIdx.push(i); hVal.push(v); }
+    hStarts[j + 1] = hIdx.length;
+  });
+  const m = qp.h.length;
+  return H.withModel(
+    {
+      numCols: n, numRows: m, colCost: qp.q, colLower: qp.lower, colUpper: qp.upper,
+      rowLower: new Float64Array(m).fill(-H.infinity), rowUpper: qp.h,
+      matrix: { format: 'csr', numRows: m, numCols: n, starts: qp.rowPtr, indices: qp.colIdx, values: qp.rowVal },
+      hessian: { format: 'triangular', dimension: n, starts: hStarts, indices: Int32Array.from(hIdx), values: Float64Array.from(hVal) },
+    },
+    (model) => {
+      model.options.set({ output_flag: false });
+      model.run();
+      const x = Float64Array.from(model.getSolution().colValue);
+      return { x, obj: objective(qp, x) };
+    },
+  );
+}
+
+function objective(qp: SparseQp, x: ArrayLike<number>): number {
+  let f = 0;
+  for (let i = 0; i < qp.n; i++) f += qp.q[i]! * x[i]!;
+  for (let k = 0; k < qp.pV.length; k++) {
+    const i = qp.pI[k]!, j = qp.pJ[k]!;
+    f += (i === j ? 0.5 : 1) * qp.pV[k]! * x[i]! * x[j]!;
+  }
+  return f;
+}
+
+function worstViolation(qp: SparseQp, x: ArrayLike<number>): number {
+  let w = 0;
+  for (let r = 0; r < qp.h.length; r++) {
+    let v = -qp.h[r]!;
+    for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) v += qp.rowVal[p]! * x[qp.colIdx[p]!]!;
+    w = Math.max(w, v);
+  }
+  for (let i = 0; i < qp.n; i++) w = Math.max(w, qp.lower[i]! - x[i]!, x[i]! - qp.upper[i]!);
+  return w;
+}
+
+describe('interior-point QP of the SQP step', () => {
+  // Reference: HiGHS's active-set QP solver on the same data (a strictly convex QP has one minimiser).
+  it.each([
+    [1, 3, 2], [2, 10, 6], [3, 25, 40], [4, 60, 30], [5, 120, 200], [6, 8, 30],
+  ])('seed %i (n = %i, m = %i) matches HiGHS', async (seed, n, m) => {
+    const qp = randomQp(seed, n, m);
+    const ours = solveQpInterior(qp);
+    expect(ours.ok, ours.message).toBe(true);
+    const ref = await highsSolve(qp);
+    expect(worstViolation(qp, ours.x)).toBeLessThan(1e-10);
+    expect(Math.abs(objective(qp, ours.x) - ref.obj)).toBeLessThan(1e-9 * (1 + Math.abs(ref.obj)));
+    let dx = 0;
+    for (let i = 0; i < n; i++) dx = Math.max(dx, Math.abs(ours.x[i]! - ref.x[i]!));
+    expect(dx).toBeLessThan(1e-6);
+    // Multipliers are non-negative and satisfy complementarity (Kuhn–Tucker conditions, Nocedal & Wright §12.3).
+    for (let r = 0; r < m; r++) expect(ours.y[r]!).toBeGreaterThanOrEqual(0);
+  });
+
+  it('a concave direction stopped only by the box goes to the box (closed form)', () => {
+    // minimise -x0²/2 - x1 with x0 + x1 <= 1, |x| <= 2. The start x0 = 0 is a stationary point of the
+    // nonconvex QP; with the inertia correction the method must still end at a Kuhn–Tucker point. By hand:
+    // for x0 <= -1 the best x1 is 2 and f = -x0²/2 - 2 (least at x0 = -2: f = -4); for x0 >= -1 it is
+    // x1 = 1 - x0 and f = -x0²/2 + x0 - 1, concave, least at the end x0 = 2 (f = -1). So the local minimisers
+    // are (-2, 2) with f = -4 and (2, -1) with f = -1.
+    const qp: SparseQp = {
+      n: 2, pI: [0], pJ: [0], pV: [-1], q: Float64Array.of(0, -1),
+      rowPtr: Int32Array.of(0, 2), colIdx: Int32Array.of(0, 1), rowVal: Float64Array.of(1, 1), h: Float64Array.of(1),
+      lower: Float64Array.of(-2, -2), upper: Float64Array.of(2, 2),
+    };
+    const sol = solveQpInterior(qp);
+    expect(sol.ok, sol.message).toBe(true);
+    expect(sol.regularisation).toBeGreaterThan(0);
+    expect(worstViolation(qp, sol.x)).toBeLessThan(1e-10);
+    const f = objective(qp, sol.x);
+    expect(Math.min(Math.abs(f + 4), Math.abs(f + 1))).toBeLessThan(1e-8);
+  });
+});
