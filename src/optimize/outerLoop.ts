@@ -131,6 +131,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline };
       const s = sqpStep(sqpInput);
       if (s.ok) carried = { cons, lambda: s.lambda };
+      if (process.env.SQP_DEBUG && !s.ok) console.log("QP failed", s.message, cons.length, chart.nFree, W.v.length);
       step = s;
     } else {
       step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);

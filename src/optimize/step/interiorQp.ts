@@ -69,6 +69,11 @@ const DELTA_MAX_REL = 1e12;
  * row's slack is about μ over its multiplier, so this keeps its error far below the step's own accuracy.
  */
 const GAP_REL = 1e-2;
+/** Rounding floor of the mean complementarity product (relative to the data's size). */
+const GAP_FLOOR = 1e-15;
+/** Dual regularisation (relative) and the iterative-refinement passes that undo it. */
+const DUAL_REG_REL = 1e-9;
+const REFINE_STEPS = 3;
 /**
  * Pivots counted as zero, relative to the largest diagonal entry: the barrier terms spread the diagonal
  * over some 30 orders of magnitude near the end, and a quasi-definite matrix has no zero pivot, so only a
@@ -80,17 +85,30 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
   const tol = options.tol ?? DEFAULT_TOL;
   const maxIt = options.maxIterations ?? DEFAULT_MAX_ITERATIONS;
   const n = qp.n, m = qp.h.length;
-  const N = n + m;
 
-  // The pattern of the reduced system: P, C (as the upper-right block) and every diagonal entry.
-  const trip = new SymTriplets(N);
+  // The normal matrix M = P + Σ + δI + Cᵀ (Y S⁻¹) C: P's entries, every diagonal entry, and each pair of
+  // columns a row touches (the ring-contact graph again: a strut couples its two rings and the tube).
+  const trip = new SymTriplets(n);
   for (let k = 0; k < qp.pV.length; k++) trip.add(qp.pI[k]!, qp.pJ[k]!, qp.pV[k]!);
-  for (let r = 0; r < m; r++) for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) trip.add(qp.colIdx[p]!, n + r, qp.rowVal[p]!);
   const firstDiag = trip.length;
-  for (let i = 0; i < N; i++) trip.add(i, i, 0);
+  for (let i = 0; i < n; i++) trip.add(i, i, 0);
+  const firstPair = trip.length;
+  const pairA: number[] = [], pairB: number[] = [], pairRowStart = new Int32Array(m + 1);
+  for (let r = 0; r < m; r++) {
+    for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) {
+      for (let p2 = p; p2 < qp.rowPtr[r + 1]!; p2++) {
+        trip.add(qp.colIdx[p]!, qp.colIdx[p2]!, 0);
+        pairA.push(p);
+        pairB.push(p2);
+      }
+    }
+    pairRowStart[r + 1] = pairA.length;
+  }
   const { matrix: K, slot } = trip.toCsc();
   const base = Float64Array.from(K.values);
-  const diagSlot = slot.subarray(firstDiag, firstDiag + N);
+  const diagSlot = slot.subarray(firstDiag, firstDiag + n);
+  const pairSlot = slot.subarray(firstPair, firstPair + pairA.length);
+  const rowScale = new Float64Array(m);
   const pattern = analyseLdl(K);
   let pDiagMax = 1;
   for (let k = 0; k < qp.pV.length; k++) if (qp.pI[k] === qp.pJ[k]) pDiagMax = Math.max(pDiagMax, Math.abs(qp.pV[k]!));
@@ -128,7 +146,11 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
 
   const qScale = 1 + maxAbs(q);
   const rd = new Float64Array(n), rp = new Float64Array(m), rl = new Float64Array(n), ru = new Float64Array(n);
-  const rhs = new Float64Array(N), sol = new Float64Array(N);
+  const rhs1 = new Float64Array(n), rhs2 = new Float64Array(m), scaled = new Float64Array(m), ctY2 = new Float64Array(n);
+  const res1 = new Float64Array(n), res2 = new Float64Array(m), corrX = new Float64Array(n), aDiag = new Float64Array(n);
+  // Dual regularisation of the rows, relative to the data's scale: it bounds the normal matrix's entries, so
+  // rounding cannot flip the sign of a pivot (the inertia test stays trustworthy to the end).
+  const rho = DUAL_REG_REL * Math.max(pDiagMax, 1) ** -1;
   const dx = new Float64Array(n), dy = new Float64Array(m), ds = new Float64Array(m);
   const dsl = new Float64Array(n), dwl = new Float64Array(n), dsu = new Float64Array(n), dwu = new Float64Array(n);
   const aff = { ds: new Float64Array(m), dy: new Float64Array(m), dsl: new Float64Array(n), dwl: new Float64Array(n), dsu: new Float64Array(n), dwu: new Float64Array(n) };
@@ -136,6 +158,7 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
   const affOut = { dx: new Float64Array(n), ...aff };
   const nComp = m + 2 * n;
   let delta = 0, deltaUsed = 0;
+  let lastRes: [number, number, number] = [Infinity, Infinity, Infinity];
   let it = 0;
   let message = 'iteration limit';
   let ok = false;
@@ -161,9 +184,11 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
       gap += s[r]! * y[r]!;
     }
     const mu = gap / Math.max(nComp, 1);
+    lastRes = [0, 0, mu];
     const primalRes = Math.max(maxAbs(rp) / (1 + hScale), maxAbs(rl) / (1 + boxScale), maxAbs(ru) / (1 + boxScale));
     const dualRes = maxAbs(rd) / qScale;
-    if (primalRes <= tol && dualRes <= tol && mu <= GAP_REL * tol * minWidth) {
+    lastRes = [primalRes, dualRes, mu];
+    if (primalRes <= tol && dualRes <= tol && mu <= Math.max(GAP_REL * tol * minWidth, GAP_FLOOR * qScale * Math.max(1, hScale))) {
       ok = true;
       message = `converged in ${it} iterations`;
       break;
@@ -179,10 +204,23 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
     for (;;) {
       const vals = K.values;
       vals.set(base);
-      for (let i = 0; i < n; i++) vals[diagSlot[i]!] = vals[diagSlot[i]!]! + wl[i]! / sl[i]! + wu[i]! / su[i]! + delta;
-      for (let r = 0; r < m; r++) vals[diagSlot[n + r]!] = vals[diagSlot[n + r]!]! - s[r]! / y[r]!;
+      for (let i = 0; i < n; i++) {
+        aDiag[i] = wl[i]! / sl[i]! + wu[i]! / su[i]! + delta;
+        vals[diagSlot[i]!] = vals[diagSlot[i]!]! + aDiag[i]!;
+      }
+      for (let r = 0; r < m; r++) {
+        const d = 1 / (s[r]! / y[r]! + rho);
+        rowScale[r] = d;
+        for (let e = pairRowStart[r]!; e < pairRowStart[r + 1]!; e++) {
+          const a = pairA[e]!, b = pairB[e]!;
+          // One stored (upper) entry per pair; two entries of a row in the same column meet twice on the diagonal.
+          vals[pairSlot[e]!] = vals[pairSlot[e]!]! + d * qp.rowVal[a]! * qp.rowVal[b]! * (a !== b && qp.colIdx[a] === qp.colIdx[b] ? 2 : 1);
+        }
+      }
       const f = factorLdl(pattern, K, PIVOT_ZERO_REL);
-      if (f.zero === 0 && f.positive === n && f.negative === m) {
+      // By the Schur complement, the reduced system has n positive and m negative eigenvalues exactly when
+      // M is positive definite.
+      if (f.zero === 0 && f.positive === n) {
         factor = f;
         break;
       }
@@ -204,19 +242,38 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
       for (let i = 0; i < n; i++) {
         const rcl = sl[i]! * wl[i]! - sigmaMu + (corr ? corr.dsl[i]! * corr.dwl[i]! : 0);
         const rcu = su[i]! * wu[i]! - sigmaMu + (corr ? corr.dsu[i]! * corr.dwu[i]! : 0);
-        rhs[i] = -rd[i]! - (rcl + wl[i]! * rl[i]!) / sl[i]! + (rcu + wu[i]! * ru[i]!) / su[i]!;
+        rhs1[i] = -rd[i]! - (rcl + wl[i]! * rl[i]!) / sl[i]! + (rcu + wu[i]! * ru[i]!) / su[i]!;
         // Stash for back-substitution.
         out.dsl[i] = rcl;
         out.dsu[i] = rcu;
       }
       for (let r = 0; r < m; r++) {
         const rc = s[r]! * y[r]! - sigmaMu + (corr ? corr.ds[r]! * corr.dy[r]! : 0);
-        rhs[n + r] = -rp[r]! + rc / y[r]!;
+        rhs2[r] = -rp[r]! + rc / y[r]!;
         out.ds[r] = rc;
       }
-      factor!.solve(rhs, sol);
-      for (let i = 0; i < n; i++) out.dx[i] = sol[i]!;
-      for (let r = 0; r < m; r++) out.dy[r] = sol[n + r]!;
+      // The regularised system by its normal matrix, then iterative refinement on the exact one.
+      out.dx.fill(0);
+      out.dy.fill(0);
+      res1.set(rhs1);
+      res2.set(rhs2);
+      for (let pass = 0; pass <= REFINE_STEPS; pass++) {
+        // [M] ddx = R1 + Cᵀ D R2;  ddy = D (C ddx - R2),  D = (S Y⁻¹ + ρ)⁻¹.
+        for (let r = 0; r < m; r++) scaled[r] = rowScale[r]! * res2[r]!;
+        mulCt(qp, scaled, ctY2);
+        for (let i = 0; i < n; i++) res1[i] = res1[i]! + ctY2[i]!;
+        factor!.solve(res1, corrX);
+        mulC(qp, corrX, cx);
+        for (let i = 0; i < n; i++) out.dx[i] = out.dx[i]! + corrX[i]!;
+        for (let r = 0; r < m; r++) out.dy[r] = out.dy[r]! + rowScale[r]! * (cx[r]! - res2[r]!);
+        if (pass === REFINE_STEPS) break;
+        // Residual of [A Cᵀ; C -E] (dx, dy) = (r1, r2), A = P + Σ + δI, E = S Y⁻¹.
+        mulP(qp, out.dx, res1);
+        mulCt(qp, out.dy, ctY2);
+        for (let i = 0; i < n; i++) res1[i] = rhs1[i]! - res1[i]! - aDiag[i]! * out.dx[i]! - ctY2[i]!;
+        mulC(qp, out.dx, cx);
+        for (let r = 0; r < m; r++) res2[r] = rhs2[r]! - cx[r]! + (s[r]! / y[r]!) * out.dy[r]!;
+      }
       // ds = -rp - C dx;  dsl = dx + rl;  dwl = -(rcl + wl dsl)/sl;  dsu = -dx + ru;  dwu = -(rcu + wu dsu)/su.
       mulC(qp, out.dx, cx);
       for (let r = 0; r < m; r++) out.ds[r] = -rp[r]! - cx[r]!;
@@ -262,7 +319,9 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
       y[r] = y[r]! + alpha * dy[r]!;
     }
   }
-  if (!ok && it >= maxIt) message = `no convergence in ${maxIt} iterations`;
+  if (!ok && it >= maxIt) {
+    message = `no convergence in ${maxIt} iterations (primal ${lastRes[0].toExponential(1)}, dual ${lastRes[1].toExponential(1)}, gap ${lastRes[2].toExponential(1)}, δ ${delta.toExponential(1)})`;
+  }
   return { ok, x, y, iterations: it, regularisation: deltaUsed, message };
 }
 
