@@ -57,6 +57,8 @@ export interface Posed {
   R: Float64Array;
   /** Per representative and bn vector: J(ω)(n0 × bn_k)/R, the ω-direction of a unit variable. */
   dirs: Float64Array[][];
+  /** Per representative (3 each): its rotation vector ω, on which `dirs` depends (the chart's curvature). */
+  omega: Float64Array;
 }
 
 /**
@@ -113,6 +115,7 @@ export function posedAt(chart: Chart, z: ArrayLike<number>): Posed {
   for (let k = 0; k < chart.nFree; k++) full[chart.free[k]!] = z[k]!;
   const repC: Vec3[] = [], repQ: Mat3[] = [];
   const dirs: Float64Array[][] = [];
+  const omega = new Float64Array(3 * chart.reps.length);
   for (const rep of chart.reps) {
     const cc: Vec3 = [rep.c0[0], rep.c0[1], rep.c0[2]];
     rep.bc.forEach((b, k) => {
@@ -126,6 +129,9 @@ export function posedAt(chart: Chart, z: ArrayLike<number>): Posed {
     });
     const n0 = rep.n0;
     const wx = n0[1] * dz - n0[2] * dy, wy = n0[2] * dx - n0[0] * dz, wz = n0[0] * dy - n0[1] * dx;
+    omega[3 * repQ.length] = wx;
+    omega[3 * repQ.length + 1] = wy;
+    omega[3 * repQ.length + 2] = wz;
     repC.push(cc);
     repQ.push(expMap(wx, wy, wz));
     const J = leftJacobian(wx, wy, wz);
@@ -150,7 +156,7 @@ export function posedAt(chart: Chart, z: ArrayLike<number>): Posed {
     e2.set(conj(M, Q, chart.e2.subarray(3 * j, 3 * j + 3)), 3 * j);
     R[j] = base.radius;
   }
-  return { c, n: nn, e1, e2, R, dirs };
+  return { c, n: nn, e1, e2, R, dirs, omega };
 }
 
 /**

@@ -1,15 +1,18 @@
 // The polish of a periodic arrangement: Newton on the KKT system of the active struts (kktNewton.ts, shared
-// with polish.ts) on the periodic chart (ring poses and lattice vectors). Degenerate optima are common here
-// (a family of equally thick weaves, e.g. the twist of a 2-in-1 chain), so every step is by the SVD with a
-// cutoff above the noise of the differenced Hessian, and more steps and halvings are allowed.
+// with polish.ts) on the periodic chart (ring poses and lattice vectors), with the exact Lagrangian Hessian
+// (lagrangianHessian.ts; differences of the gradients where it cannot be given, or when switched off).
+// Degenerate optima are common here (a family of equally thick weaves, e.g. the twist of a 2-in-1 chain), so
+// every step is by the SVD with a cutoff above the noise of a differenced Hessian, and more steps and
+// halvings are allowed.
 import { leastSquares } from './linalg.js';
 import { polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
+import { exactHessianOn, periodicLagrangianHessian } from './lagrangianHessian.js';
 import { periodicPosedAt, type PeriodicChart, type PeriodicPosed } from './periodicChart.js';
 import { evaluatePeriodic, type PeriodicConstraint } from './periodicConstraints.js';
 
 /**
- * Singular values of the KKT matrix below this fraction of the largest are dropped: the Hessian block comes
- * from differences with a 1e-6 step, so its rounding noise is ~1e-10 relative, and a family of optima (a
+ * Singular values of the KKT matrix below this fraction of the largest are dropped: when the Hessian block
+ * comes from differences with a 1e-6 step, its rounding noise is ~1e-10 relative, and a family of optima (a
  * connector free to spin about its contact axis) leaves exact null directions that noise must not fill.
  */
 const SVD_CUTOFF = 1e-9;
@@ -37,5 +40,6 @@ export function periodicKktModel(pc: PeriodicChart): KktModel<PeriodicConstraint
     posedAt: (z) => periodicPosedAt(pc, z),
     evaluate: (con, pp, keep) => evaluatePeriodic(con, pc, pp, true, keep),
     copy: (k) => ({ ...k, shift: k.shift.slice(), grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }),
+    hessian: (cons, pp, lambda) => (exactHessianOn() ? periodicLagrangianHessian(pc, pp, cons, lambda) : null),
   };
 }

@@ -4,14 +4,11 @@
 import { posedAt, type Chart, type Posed } from './chart.js';
 import { evaluate, type Constraint, type DepartureSpec } from './constraints.js';
 import { polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
-import { ringLagrangianHessian } from './lagrangianHessian.js';
+import { exactHessianOn, ringLagrangianHessian } from './lagrangianHessian.js';
 import { leastSquares, leastSquaresRegularized } from './linalg.js';
 
-/** The exact strut curvatures (lagrangianHessian.ts) replace differenced gradients; off only for comparisons. */
-let exactHessian = true;
-export function useExactHessian(on: boolean): void {
-  exactHessian = on;
-}
+/** The exact strut curvatures (lagrangianHessian.ts) replace differenced gradients, in this polish and the weaves'. */
+export { useExactHessian } from './lagrangianHessian.js';
 
 /**
  * Newton steps near minimum norm by cheap regularised normal equations, by the SVD when that step does not
@@ -40,6 +37,6 @@ export function ringKktModel(chart: Chart, dep: DepartureSpec | null): KktModel<
     posedAt: (z) => posedAt(chart, z),
     evaluate: (con, posed, keep) => evaluate(con, chart, posed, true, dep, keep),
     copy: (k) => ({ ...k, grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }),
-    hessian: (cons, posed, lambda) => (exactHessian ? ringLagrangianHessian(chart, posed, cons, lambda) : null),
+    hessian: (cons, posed, lambda) => (exactHessianOn() ? ringLagrangianHessian(chart, posed, cons, lambda) : null),
   };
 }
