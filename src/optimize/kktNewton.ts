@@ -39,6 +39,11 @@ export interface KktModel<C extends Constraint, P> {
    * the chart cannot give it; then it is taken by central differences of the gradients.
    */
   hessian?(cons: readonly C[], posed: P, lambda: Float64Array): Float64Array | null;
+  /**
+   * The same W as sparse entries (upper triangle of the symmetrised W, repeats summed) handed to `add`;
+   * false where the chart cannot give it (what was handed out is then to be discarded).
+   */
+  hessianEntries?(cons: readonly C[], posed: P, lambda: Float64Array, add: (i: number, j: number, v: number) => void): boolean;
 }
 
 export interface KktSettings {

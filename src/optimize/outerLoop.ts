@@ -131,7 +131,6 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline };
       const s = sqpStep(sqpInput);
       if (s.ok) carried = { cons, lambda: s.lambda };
-      if (process.env.SQP_DEBUG && !s.ok) console.log("QP failed", s.message, cons.length, chart.nFree, W.v.length);
       step = s;
     } else {
       step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);
@@ -244,21 +243,14 @@ function lagrangianEntries<C extends Constraint, P>(
       lam.push(lambda[k]!);
     }
   });
-  if (keep.length === 0 || !chart.model.hessian) return out;
-  const n = chart.nFree;
-  const posed = chart.model.posedAt(new Float64Array(n));
-  const W = chart.model.hessian(keep as unknown as C[], posed, Float64Array.from(lam));
-  if (!W) return out;
-  for (let i = 0; i < n; i++) {
-    for (let j = i; j < n; j++) {
-      const v = i === j ? W[i * n + i]! : 0.5 * (W[i * n + j]! + W[j * n + i]!);
-      if (v !== 0) {
-        out.i.push(i);
-        out.j.push(j);
-        out.v.push(v);
-      }
-    }
-  }
+  if (keep.length === 0 || !chart.model.hessianEntries) return out;
+  const posed = chart.model.posedAt(new Float64Array(chart.nFree));
+  const ok = chart.model.hessianEntries(keep as unknown as C[], posed, Float64Array.from(lam), (i, j, v) => {
+    out.i.push(i);
+    out.j.push(j);
+    out.v.push(v);
+  });
+  if (!ok) return { i: [], j: [], v: [] };
   return out;
 }
 

@@ -6,7 +6,7 @@
 // halvings are allowed.
 import { leastSquares } from './linalg.js';
 import { polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
-import { exactHessianOn, periodicLagrangianHessian } from './lagrangianHessian.js';
+import { addPeriodicLagrangianHessian, exactHessianOn, periodicLagrangianHessian } from './lagrangianHessian.js';
 import { periodicPosedAt, type PeriodicChart, type PeriodicPosed } from './periodicChart.js';
 import { evaluatePeriodic, type PeriodicConstraint } from './periodicConstraints.js';
 
@@ -41,5 +41,6 @@ export function periodicKktModel(pc: PeriodicChart): KktModel<PeriodicConstraint
     evaluate: (con, pp, keep) => evaluatePeriodic(con, pc, pp, true, keep),
     copy: (k) => ({ ...k, shift: k.shift.slice(), grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }),
     hessian: (cons, pp, lambda) => (exactHessianOn() ? periodicLagrangianHessian(pc, pp, cons, lambda) : null),
+    hessianEntries: (cons, pp, lambda, add) => addPeriodicLagrangianHessian(pc, pp, cons, lambda, add),
   };
 }

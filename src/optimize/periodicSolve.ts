@@ -59,7 +59,7 @@ async function solveInFrame(problem: PeriodicProblem, options: SolveOptions): Pr
   if (start === null) return infeasible(problem, 'the start rings intersect or do not have the pattern\'s linked pairs');
 
   const run = await runOuterLoop(start, {
-    scale, tMax, finalTol: ctx.finalTol, algorithm, stepMethod: options.step ?? 'proximal',
+    scale, tMax, finalTol: ctx.finalTol, algorithm, stepMethod: options.step ?? 'sqp',
     maxIterations: options.maxIterations, maxEscapes: ctx.maxEscapes, onIteration: options.onIteration,
     deadline: options.deadline,
     escapeSizes: ESCAPE_STEPS_REL,

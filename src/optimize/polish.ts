@@ -4,7 +4,7 @@
 import { posedAt, type Chart, type Posed } from './chart.js';
 import { evaluate, type Constraint, type DepartureSpec } from './constraints.js';
 import { polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
-import { exactHessianOn, ringLagrangianHessian } from './lagrangianHessian.js';
+import { addRingLagrangianHessian, exactHessianOn, ringLagrangianHessian } from './lagrangianHessian.js';
 import { leastSquares, leastSquaresRegularized } from './linalg.js';
 
 /** The exact strut curvatures (lagrangianHessian.ts) replace differenced gradients, in this polish and the weaves'. */
@@ -38,5 +38,6 @@ export function ringKktModel(chart: Chart, dep: DepartureSpec | null): KktModel<
     evaluate: (con, posed, keep) => evaluate(con, chart, posed, true, dep, keep),
     copy: (k) => ({ ...k, grad: new Float64Array(n), pa: [...k.pa], pb: [...k.pb] }),
     hessian: (cons, posed, lambda) => (exactHessianOn() ? ringLagrangianHessian(chart, posed, cons, lambda) : null),
+    hessianEntries: (cons, posed, lambda, add) => addRingLagrangianHessian(chart, posed, cons, lambda, add),
   };
 }
