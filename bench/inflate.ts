@@ -3,7 +3,7 @@
 // worker as the baseline measured in the same run. Seeded; warm-up; median of repeats.
 // Targets: a single solve under 1 s, 16 starts under 10 s. Tracked without a target: bench/data/jammed-6.json,
 // a random tree of 6 unequal rings on which the first-order outer loop creeps (DEVELOPERS.md, known debts).
-// Run: npm run build && node dist/bench/inflate.js [--repeats N] [--json]
+// Run: npm run build && node dist/bench/inflate.js [--repeats N] [--step sqp|proximal] [--json]
 import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { packingBound } from '../src/optimize/bound.js';
@@ -28,6 +28,9 @@ const repeatsArg = args.indexOf('--repeats');
 const REPEATS = repeatsArg >= 0 ? Math.max(1, Number(args[repeatsArg + 1])) : 5;
 const MULTI_REPEATS = Math.max(1, Math.min(REPEATS, 3));
 const json = args.includes('--json');
+/** The outer loop's step: 'sqp' (default) or 'proximal' (the first-order baseline), for old-vs-new runs. */
+const stepArg = args.indexOf('--step');
+const STEP = stepArg >= 0 ? (args[stepArg + 1] as 'sqp' | 'proximal') : 'sqp';
 
 /** CPU seconds (user + system, every thread of this process) since `c0`. */
 function cpuSince(c0: NodeJS.CpuUsage): number {
@@ -78,7 +81,7 @@ function reference(spec: string, tubeBound: number | null): { value: number; nam
 
 async function singleSolve(spec: string, symmetry: string, label = spec, hasTarget = true, scale = 1): Promise<Row> {
   const problem = problemOf(spec, symmetry, scale);
-  const options = { tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05 };
+  const options = { tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05, step: STEP };
   // Warm-up: JIT, WebAssembly instantiation.
   await solveInflate(problem, options);
   const times: number[] = [];
@@ -122,7 +125,7 @@ async function multistart(spec: string, symmetry: string, workers: number, start
     const c0 = process.cpuUsage();
     const t0 = performance.now();
     const r = await runMultistart(problem, {
-      starts, workers, seed: SEED, tol: TOL, maxIterations: MAX_ITERATIONS, spec, command: 'bench', units: null,
+      starts, workers, seed: SEED, tol: TOL, maxIterations: MAX_ITERATIONS, spec, command: 'bench', units: null, step: STEP,
     });
     times.push((performance.now() - t0) / 1000);
     cpu.push(cpuSince(c0));

@@ -1,14 +1,13 @@
 // Scaling benchmark: time to tol 1e-9 and outer iterations against the ring count N for chain:N and
-// necklace:N (N = 4, 8, 16, … up to --max, default 64), two methods side by side in the same run:
-//   differenced  the Newton polish's Lagrangian Hessian by central differences of gradients (n·m strut
-//                evaluations per Newton step), the method before the strut curvatures;
-//   exact        the same from the exact strut curvatures (strutHessian.ts, lagrangianHessian.ts; m blocks).
-// The outer loop's step (the proximal QP) is the same for both. Seeded, one warm-up solve, median of
-// repeats, a time budget per case (a case over budget is reported as "> budget" and left out of the fit);
-// the fitted exponent is the least-squares slope of log(time) against log(N) over the cases in budget.
-// Run: npm run build && node dist/bench/scaling.js [--max 64] [--repeats 1] [--budget 60] [--json]
+// necklace:N (N = 4, 8, 16, … up to --max, default 64), two outer-loop steps side by side in the same run:
+//   proximal  the first-order proximal QP (localStep.ts: nlopt-js SLSQP, HiGHS as companion), the old method;
+//   sqp       the second-order step (step/sqpStep.ts: exact Lagrangian Hessian, sparse interior-point QP).
+// Both finish with the same Newton polish. Seeded, one warm-up solve, median of repeats, a time budget per
+// case (a case over budget is reported as "> budget" and left out of the fit); the fitted exponent is the
+// least-squares slope of log(time) against log(N) over the cases in budget. Every result is re-checked by
+// the independent verifier (verifyOutcome).
+// Run: npm run build && node dist/bench/scaling.js [--max 64] [--repeats 1] [--budget 60] [--methods sqp,proximal] [--json]
 import { solveInflate } from '../src/optimize/solve.js';
-import { useExactHessian } from '../src/optimize/polish.js';
 import { verifyOutcome } from '../src/optimize/multistart.js';
 import type { InflateProblem } from '../src/optimize/problem.js';
 import { resolveSpec } from '../src/model/spec.js';
@@ -26,8 +25,9 @@ const MAX_N = num('--max', 64);
 const REPEATS = Math.max(1, num('--repeats', 1));
 const BUDGET_S = num('--budget', 60);
 const json = args.includes('--json');
-const METHODS = ['differenced', 'exact'] as const;
-type Method = (typeof METHODS)[number];
+type Method = 'proximal' | 'sqp';
+const methodsArg = args.indexOf('--methods');
+const METHODS: readonly Method[] = methodsArg >= 0 ? (args[methodsArg + 1]!.split(',') as Method[]) : ['proximal', 'sqp'];
 
 class OverBudget extends Error {}
 
@@ -45,12 +45,11 @@ interface Cell {
 }
 
 async function solveOnce(spec: string, method: Method): Promise<Cell> {
-  useExactHessian(method === 'exact');
   const problem = problemOf(spec);
   const t0 = performance.now();
   try {
     const out = await solveInflate(problem, {
-      tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05,
+      tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05, step: method,
       onIteration: () => {
         if ((performance.now() - t0) / 1000 > BUDGET_S) throw new OverBudget();
       },
@@ -116,11 +115,14 @@ async function main(): Promise<void> {
     return;
   }
   const fmt = (c: Cell): string => (c.seconds === null ? `> ${BUDGET_S} s` : `${c.seconds.toFixed(2)} s`);
-  console.log(`| case | differenced: time | it | status | exact: time | it | status | tube (exact) |`);
-  console.log(`| --- | --- | --- | --- | --- | --- | --- | --- |`);
+  console.log(`| case | ${METHODS.map((m) => `${m}: time | it | status | tube/R`).join(' | ')} |`);
+  console.log(`| --- |${METHODS.map(() => ' --- | --- | --- | --- |').join('')}`);
   for (const r of rows) {
-    const d = r.cells.differenced, e = r.cells.exact;
-    console.log(`| ${r.spec} | ${fmt(d)} | ${d.iterations} | ${d.status}${d.verified ? '' : ' (unverified)'} | ${fmt(e)} | ${e.iterations} | ${e.status}${e.verified ? '' : ' (unverified)'} | ${e.tube} |`);
+    const cells = METHODS.map((m) => {
+      const c = r.cells[m];
+      return `${fmt(c)} | ${c.iterations} | ${c.status}${c.verified || c.seconds === null ? '' : ' (unverified)'} | ${Number.isFinite(c.tube) ? c.tube.toFixed(10) : '-'}`;
+    });
+    console.log(`| ${r.spec} | ${cells.join(' | ')} |`);
   }
   for (const [k, v] of Object.entries(fits)) console.log(`fitted exponent of time against N, ${k}: ${v.toFixed(2)}`);
 }

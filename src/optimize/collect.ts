@@ -25,6 +25,7 @@ export interface CollectOptions {
 export function collectConstraints(chart: Chart, posed: Posed, scans: readonly PairScan[], opt: CollectOptions): Constraint[] {
   const out: Constraint[] = [];
   const nFree = chart.nFree;
+  const probe = newConstraint('sample', 0, 0, 0, 0, 0, 0, true);
   for (const scan of scans) {
     if (scan.distance - opt.t * scan.c > opt.margin) continue;
     for (const k of scan.contacts) {
@@ -38,12 +39,21 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
     for (const [a, b] of [[scan.a, scan.b], [scan.b, scan.a]] as const) {
       for (let k = 0; k < SAMPLES_PER_RING; k++) {
         const th = (2 * Math.PI * (k + 0.5)) / SAMPLES_PER_RING;
-        const con = newConstraint('sample', a, b, 0, th, scan.c, nFree, true);
-        const g = evaluate(con, chart, posed, true, opt.dep);
+        // The value first, on a shared row without a gradient; most samples are left out, and a gradient is
+        // a row as long as the chart (allocating one per sample dominated the collection on long chains).
+        probe.a = a;
+        probe.b = b;
+        probe.ta = 0;
+        probe.tb = th;
+        probe.c = scan.c;
+        const g = evaluate(probe, chart, posed, false, opt.dep);
         // Near ring a's axis the nearest point on a jumps (on the axis all of a is equally near): the
         // sample's distance is not smooth there, so leave it out (it is only an extra, redundant bound).
-        if (axisDistance(posed, a, con.pb) < SAMPLE_AXIS_REL * posed.R[a]!) continue;
-        if (Number.isFinite(g) && g - opt.t * scan.c <= sampleMargin) out.push(con);
+        if (!Number.isFinite(g) || g - opt.t * scan.c > sampleMargin) continue;
+        if (axisDistance(posed, a, probe.pb) < SAMPLE_AXIS_REL * posed.R[a]!) continue;
+        const con = newConstraint('sample', a, b, 0, th, scan.c, nFree, true);
+        evaluate(con, chart, posed, true, opt.dep);
+        out.push(con);
       }
     }
   }

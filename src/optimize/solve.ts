@@ -29,6 +29,13 @@ import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
 } from './trustRegion.js';
 
+/**
+ * Free variables above which the dense Newton polish (kktNewton.ts, O(n³) least squares) is skipped: the
+ * SQP step converges on its own there (chain:40 needed one polish step after it), and above ~50 rings the
+ * polish took half of the solve.
+ */
+const DENSE_POLISH_MAX_FREE = 300;
+
 /** Relative rounding allowed on the departure bound. */
 const DEPARTURE_ROUNDING_REL = 1e-12;
 
@@ -136,6 +143,7 @@ function ringLoopChart(state: RingState, ctx: Context): LoopChart<RingState, Con
 /** Newton on the active set, for each candidate threshold in turn; accepted only if the kernel agrees. */
 function tryPolish(state: RingState, ctx: Context): Polished<RingState> | null {
   const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
+  if (chart.nFree > DENSE_POLISH_MAX_FREE) return null;
   const posed = posedAt(chart, new Float64Array(chart.nFree));
   const all = collectConstraints(chart, posed, state.scans, { t: state.t, margin: ACTIVE_TOLS.at(-1)! * state.t, w: ctx.w, dep: ctx.dep, samples: true });
   let lastSet = '';

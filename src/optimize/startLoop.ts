@@ -24,6 +24,8 @@ export interface StartLoopOptions {
   /** Start perturbation relative to each ring's radius (dimensionless); start 0 is never perturbed. */
   perturbation?: number;
   algorithm?: Algorithm;
+  /** The outer loop's step (SolveOptions.step); the second-order step unless told otherwise. */
+  step?: 'sqp' | 'proximal';
   /** Wall-clock seconds for the whole run: every start's outer loop stops then and reports what it has. */
   timeLimit?: number;
   onProgress?: (event: StartProgress) => void;
@@ -95,6 +97,7 @@ export async function runStarts<O extends SolveOutcome>(
         seed: startSeed(options.seed, k),
         perturbation: k === 0 ? 0 : options.perturbation ?? DEFAULT_PERTURBATION,
         algorithm: options.algorithm ?? 'slsqp',
+        ...(options.step !== undefined ? { step: options.step } : {}),
         ...(deadline !== undefined ? { deadline } : {}),
       },
     };
