@@ -121,6 +121,19 @@ describe('solves match the dense LU solve of ml-matrix', () => {
     );
   });
 
+  it('KKT matrices of the benchmark sizes (n up to ~5,000): small residual and inertia (primal, dual) under min-degree', () => {
+    // Residual: Higham §7.1 as above (the dense solve is too slow at this size). Inertia: Vanderbei 1995, Thm 2.1.
+    const rnd = seededRandom(44);
+    for (const [nodes, edges] of [[714, pathEdges(714)], [300, cycleEdges(300)], [625, gridEdges(25, 25)]] as const) {
+      const A = kktFromGraph(nodes, edges, rnd).toCsc().matrix;
+      const f = factorLdl(analyseLdl(A), A);
+      expect([f.positive, f.negative, f.zero]).toEqual([nodes * BLOCK, edges.length, 0]);
+      const b = randomVector(A.n, rnd), x = f.solve(b);
+      const r = symMul(A, x).map((v, i) => v - b[i]!);
+      expect(norm(r) / (normInf(A) * norm(x) + norm(b))).toBeLessThan(1e-10);
+    }
+  });
+
   it('solve writes into out even when out is b, and is repeatable', () => {
     const rnd = seededRandom(3);
     const A = kktFromGraph(5, cycleEdges(5), rnd).toCsc().matrix;
