@@ -319,9 +319,10 @@ function checkCsc(A: SymCsc): void {
 
 function checkSamePattern(p: LdlPattern, A: SymCsc): void {
   if (A.n !== p.n) throw new RangeError(`factorLdl: matrix size ${A.n} differs from the analysed ${p.n}`);
-  if (A.colPtr === p.colPtr && A.rowIdx === p.rowIdx) return;
   const nnz = p.colPtr[p.n]!;
-  let same = A.colPtr.length === p.colPtr.length && A.values.length === nnz;
+  if (A.values.length !== nnz) throw new RangeError(`factorLdl: ${A.values.length} values, expected ${nnz} for the analysed pattern`);
+  if (A.colPtr === p.colPtr && A.rowIdx === p.rowIdx) return;
+  let same = A.colPtr.length === p.colPtr.length;
   for (let j = 0; same && j <= p.n; j++) same = A.colPtr[j] === p.colPtr[j];
   for (let q = 0; same && q < nnz; q++) same = A.rowIdx[q] === p.rowIdx[q];
   if (!same) throw new RangeError('factorLdl: matrix pattern differs from the analysed one; call analyseLdl for the new pattern');
