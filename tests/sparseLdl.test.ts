@@ -121,6 +121,19 @@ describe('solves match the dense LU solve of ml-matrix', () => {
     );
   });
 
+  it('KKT matrices of the benchmark sizes (n up to ~5,000): small residual and inertia (primal, dual) under min-degree', () => {
+    // Residual: Higham §7.1 as above (the dense solve is too slow at this size). Inertia: Vanderbei 1995, Thm 2.1.
+    const rnd = seededRandom(44);
+    for (const [nodes, edges] of [[714, pathEdges(714)], [300, cycleEdges(300)], [625, gridEdges(25, 25)]] as const) {
+      const A = kktFromGraph(nodes, edges, rnd).toCsc().matrix;
+      const f = factorLdl(analyseLdl(A), A);
+      expect([f.positive, f.negative, f.zero]).toEqual([nodes * BLOCK, edges.length, 0]);
+      const b = randomVector(A.n, rnd), x = f.solve(b);
+      const r = symMul(A, x).map((v, i) => v - b[i]!);
+      expect(norm(r) / (normInf(A) * norm(x) + norm(b))).toBeLessThan(1e-10);
+    }
+  });
+
   it('solve writes into out even when out is b, and is repeatable', () => {
     const rnd = seededRandom(3);
     const A = kktFromGraph(5, cycleEdges(5), rnd).toCsc().matrix;
@@ -220,6 +233,21 @@ describe('singular matrices', () => {
     expect(factorLdl(analyseLdl(S, 'natural'), S).zero).toBeGreaterThan(0);
   });
 
+  it('a pivot below zeroTol times the largest diagonal counts as zero, above it by its sign', () => {
+    // diag(2, -1e-15, 1e-9): the eigenvalues are the diagonal entries (closed form).
+    const t = new SymTriplets(3);
+    t.add(0, 0, 2); t.add(1, 1, -1e-15); t.add(2, 2, 1e-9);
+    const A = t.toCsc().matrix, p = analyseLdl(A);
+    const counts = (tol?: number): number[] => {
+      const f = tol === undefined ? factorLdl(p, A) : factorLdl(p, A, tol);
+      return [f.positive, f.negative, f.zero];
+    };
+    expect(counts()).toEqual([2, 0, 1]);
+    expect(counts(0)).toEqual([2, 1, 0]);
+    expect(counts(1e-6)).toEqual([1, 0, 2]);
+    expect(() => factorLdl(p, A, Number.NaN)).toThrow(/zeroTol/);
+  });
+
   it('a KKT matrix with repeated constraint rows and D2 = 0 reports a zero pivot under both orderings', () => {
     // Rank-deficient constraints make [[H, Aᵀ], [A, 0]] singular (Nocedal & Wright, "Numerical Optimization",
     // 2nd ed., Lemma 16.1 needs A of full row rank).
@@ -295,6 +323,29 @@ describe('fill', () => {
       // The ordering does the work: the random numbering as given fills many times more.
       expect(nnzL(shuffled, 'natural')).toBeGreaterThan(5 * bShuffled);
     }
+  });
+
+  it('an arrow (one row coupled to all) is ordered hub last: no fill', () => {
+    // Eliminating the hub first fills the whole matrix, last fills nothing (George & Liu 1981, §2.4, the
+    // arrowhead example); the ordering sets such dense rows aside as AMD does (Amestoy, Davis & Duff 1996).
+    for (const n of [50, 2000]) {
+      const t = new SymTriplets(n);
+      for (let i = 1; i < n; i++) t.add(0, i, 1);
+      const A = t.toCsc().matrix;
+      expect(nnzL(A, 'natural')).toBe((n * (n - 1)) / 2);
+      expect(nnzL(A, 'min-degree')).toBe(n - 1);
+    }
+  });
+
+  it('the empty matrix and a 1 × 1 matrix', () => {
+    // Trivial cases by hand: no pivots; one pivot of the entry's sign.
+    const E = new SymTriplets(0).toCsc().matrix;
+    const fe = factorLdl(analyseLdl(E), E);
+    expect([fe.positive, fe.negative, fe.zero, fe.solve(new Float64Array(0)).length]).toEqual([0, 0, 0, 0]);
+    const t = new SymTriplets(1);
+    t.add(0, 0, -4);
+    const A = t.toCsc().matrix, f = factorLdl(analyseLdl(A), A);
+    expect([f.positive, f.negative, f.zero, f.solve(Float64Array.of(2))[0]]).toEqual([0, 1, 0, -0.5]);
   });
 
   it('a 2D grid fills like n log n, far below dense and below the natural band', () => {

@@ -80,14 +80,15 @@ export function minimumDegreeOrder(n: number, colPtr: Int32Array, rowIdx: Int32A
   const mark = new Int32Array(n), wStamp = new Int32Array(n), w = new Int32Array(n);
   let stamp = 0;
 
-  const perm = new Int32Array(n);
+  const perm = new Int32Array(n), external = new Int32Array(n);
   let minDeg = 0;
-  for (let k = 0; k < live; k++) {
+  let k = 0; // pivots placed so far
+  while (k < live) {
     // Pivot: a variable of least approximate degree.
     while (head[minDeg]! < 0) minDeg++;
     const p = head[minDeg]!;
     remove(p);
-    perm[k] = p;
+    perm[k++] = p;
     stamp++;
     mark[p] = stamp;
     // L_p = (A_p ∪ ⋃_{e ∈ E_p} L_e) \ {p}; the elements of E_p are absorbed into p.
@@ -118,8 +119,6 @@ export function minimumDegreeOrder(n: number, colPtr: Int32Array, rowIdx: Int32A
     adj[p] = [];
     elems[p] = [];
     eStart[p] = start;
-    const lp = poolTop - start;
-    eLen[p] = lp;
 
     // w(e) = |L_e \ L_p| for every element next to L_p (AMD's first scan).
     for (let q = start; q < poolTop; q++) {
@@ -134,12 +133,14 @@ export function minimumDegreeOrder(n: number, colPtr: Int32Array, rowIdx: Int32A
         w[e]!--;
       }
     }
-    // Prune and re-degree each i in L_p: d_i = min(remaining - 1, d_i + |L_p \ i|, |A_i| + |L_p \ i| + Σ |L_e \ L_p|).
-    const remaining = live - k - 1;
+    // Prune E_i and A_i for each i in L_p. A variable left with no neighbour but p has the structure of p
+    // less itself: eliminate it now, with no new fill (mass elimination; George & Liu 1989, "The evolution
+    // of the minimum degree ordering algorithm", SIAM Rev. 31) — the six variables of a ring go together.
+    let top = start;
     for (let q = start; q < poolTop; q++) {
       const i = pool[q]!;
       const Ei = elems[i]!;
-      let kept = 0, external = 0;
+      let kept = 0, ext = 0;
       for (let t = 0; t < Ei.length; t++) {
         const e = Ei[t]!;
         if (state[e] !== ELEMENT) continue;
@@ -149,19 +150,36 @@ export function minimumDegreeOrder(n: number, colPtr: Int32Array, rowIdx: Int32A
           continue;
         }
         Ei[kept++] = e;
-        external += w[e]!;
+        ext += w[e]!;
       }
       Ei.length = kept;
-      Ei.push(p);
       // Variables already in L_p are reached through element p.
       const Ai = adj[i]!;
-      kept = 0;
+      let keptA = 0;
       for (let t = 0; t < Ai.length; t++) {
         const j = Ai[t]!;
-        if (state[j] === LIVE && mark[j] !== stamp) Ai[kept++] = j;
+        if (state[j] === LIVE && mark[j] !== stamp) Ai[keptA++] = j;
       }
-      Ai.length = kept;
-      const d = Math.min(remaining - 1, degree[i]! + lp - 1, kept + lp - 1 + external);
+      Ai.length = keptA;
+      if (kept === 0 && keptA === 0) {
+        perm[k++] = i;
+        state[i] = ABSORBED;
+        adj[i] = [];
+        elems[i] = [];
+        continue;
+      }
+      Ei.push(p);
+      external[i] = ext;
+      pool[top++] = i;
+    }
+    poolTop = top;
+    const lp = poolTop - start;
+    eLen[p] = lp;
+    // Approximate external degree: d_i = min(remaining - 1, d_i + |L_p \ i|, |A_i| + |L_p \ i| + Σ |L_e \ L_p|).
+    const remaining = live - k;
+    for (let q = start; q < poolTop; q++) {
+      const i = pool[q]!;
+      const d = Math.min(remaining - 1, degree[i]! + lp - 1, adj[i]!.length + lp - 1 + external[i]!);
       insert(i, d);
       if (d < minDeg) minDeg = d;
     }

@@ -192,6 +192,7 @@ const TINY_SCALE = 1e-300;
 /** A must have exactly the analysed pattern (same colPtr/rowIdx), only values differ. Never throws on a zero pivot: counts it, replaces it by a tiny signed value, keeps going. */
 export function factorLdl(p: LdlPattern, A: SymCsc, zeroTol: number = DEFAULT_ZERO_TOL): LdlFactor {
   checkSamePattern(p, A);
+  if (!(zeroTol >= 0)) throw new RangeError(`factorLdl: zeroTol ${zeroTol} must be a number >= 0`);
   const n = p.n, { Cp, Ci, Lp, Li, parent, toC } = p, { y, pattern, flag, fill, cx } = p.work;
   // Scatter A's values into the permuted upper triangle; find the scale of the zero test.
   cx.fill(0);
@@ -202,7 +203,7 @@ export function factorLdl(p: LdlPattern, A: SymCsc, zeroTol: number = DEFAULT_ZE
     const d = Math.abs(av[A.colPtr[j + 1]! - 1]!); // the diagonal is the last entry of its column (rows ascending)
     if (d > scale) scale = d;
   }
-  const threshold = Math.max(zeroTol, 0) * scale;
+  const threshold = zeroTol * scale;
   // A zero pivot is replaced by this much, signed, so the elimination continues with finite numbers.
   const replacement = Math.max(threshold, scale * Number.EPSILON);
   const Lx = new Float64Array(p.nnzL), D = new Float64Array(n);
@@ -318,9 +319,10 @@ function checkCsc(A: SymCsc): void {
 
 function checkSamePattern(p: LdlPattern, A: SymCsc): void {
   if (A.n !== p.n) throw new RangeError(`factorLdl: matrix size ${A.n} differs from the analysed ${p.n}`);
-  if (A.colPtr === p.colPtr && A.rowIdx === p.rowIdx) return;
   const nnz = p.colPtr[p.n]!;
-  let same = A.colPtr.length === p.colPtr.length && A.values.length === nnz;
+  if (A.values.length !== nnz) throw new RangeError(`factorLdl: ${A.values.length} values, expected ${nnz} for the analysed pattern`);
+  if (A.colPtr === p.colPtr && A.rowIdx === p.rowIdx) return;
+  let same = A.colPtr.length === p.colPtr.length;
   for (let j = 0; same && j <= p.n; j++) same = A.colPtr[j] === p.colPtr[j];
   for (let q = 0; same && q < nnz; q++) same = A.rowIdx[q] === p.rowIdx[q];
   if (!same) throw new RangeError('factorLdl: matrix pattern differs from the analysed one; call analyseLdl for the new pattern');
