@@ -2,7 +2,8 @@
 // (central differences of the envelope gradients, the baseline), measured in the same run.
 //  1. Newton on the KKT system (periodicPolish.ts) of each catalogue weave's optimum, from the optimum's
 //     active struts re-tracked at a seeded nearby arrangement (every pose and lattice coordinate moved by up
-//     to 1e-3 R): Newton steps, KKT residual, time, and the tube both reach.
+//     to 1e-3 R, --nearby): Newton steps, KKT residual, time, and the tube both reach; and the time of one
+//     KKT Jacobian (the Hessian block is the only difference) at the first start.
 //  2. Whole single-start solves (solvePeriodic, in this process so the switch reaches the polish): time,
 //     outer iterations, status, tube, and the last polish's message.
 // Seeded; warm-up; median of repeats.
@@ -19,7 +20,8 @@ import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicPosed } from
 import {
   evaluatePeriodic, latticeVectors, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint,
 } from '../src/optimize/periodicConstraints.js';
-import { polishPeriodic, type PeriodicPolishResult } from '../src/optimize/periodicPolish.js';
+import { kktJacobianOf } from '../src/optimize/kktNewton.js';
+import { periodicKktModel, polishPeriodic, type PeriodicPolishResult } from '../src/optimize/periodicPolish.js';
 import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/periodicProblem.js';
 import { solvePeriodic } from '../src/optimize/periodicSolve.js';
 import { benchArgs, median } from './stats.js';
@@ -40,7 +42,7 @@ type Method = 'exact' | 'differenced';
 const METHODS: readonly Method[] = ['exact', 'differenced'];
 
 /** newtonSteps: per start, -1 where the polish did not converge; residual: the largest of the converged. */
-interface PolishRow { weave: string; method: Method; struts: number; newtonSteps: number[]; residual: number; totalMs: number; tube: number }
+interface PolishRow { jacobianUs: number; weave: string; method: Method; struts: number; newtonSteps: number[]; residual: number; totalMs: number; tube: number }
 interface SolveRow { weave: string; method: Method; medianSeconds: number; iterations: number; status: string; tube: number; message: string }
 
 function problemOf(spec: string): PeriodicProblem {
@@ -122,28 +124,52 @@ for (const entry of weaveEntries()) {
     const c = cases[0]!;
     polishPeriodic(c.pc, c.active.map((con) => ({ ...con, shift: con.shift.slice(), grad: Float64Array.from(con.grad) })), c.t0, c.lambda0, c.scale);
   }
-  for (const method of METHODS) {
-    useExactHessian(method === 'exact');
-    const steps: number[] = [], ms: number[] = [];
-    let residual = 0, tube = NaN;
-    for (const c of cases) {
-      // The polish is deterministic: time it REPEATS times (on copies: tracking moves the stored angles).
-      const times: number[] = [];
-      let r: PeriodicPolishResult | null = null;
-      for (let k = 0; k < REPEATS; k++) {
+  // Interleaved (both routes on each case and repeat, order alternating) so drift and collection pauses hit both.
+  const steps: Record<Method, number[]> = { exact: [], differenced: [] };
+  const ms: Record<Method, number[]> = { exact: [], differenced: [] };
+  const residual: Record<Method, number> = { exact: 0, differenced: 0 };
+  const tube: Record<Method, number> = { exact: NaN, differenced: NaN };
+  for (const c of cases) {
+    const times: Record<Method, number[]> = { exact: [], differenced: [] };
+    const last: Partial<Record<Method, PeriodicPolishResult>> = {};
+    for (let k = 0; k < REPEATS; k++) {
+      for (const method of k % 2 === 0 ? METHODS : [...METHODS].reverse()) {
+        useExactHessian(method === 'exact');
+        // The polish is deterministic; it runs on copies (tracking moves the stored angles).
         const active = c.active.map((con) => ({ ...con, shift: con.shift.slice(), grad: Float64Array.from(con.grad) }));
         const t = performance.now();
-        r = polishPeriodic(c.pc, active, c.t0, c.lambda0, c.scale);
-        times.push(performance.now() - t);
+        last[method] = polishPeriodic(c.pc, active, c.t0, c.lambda0, c.scale);
+        times[method].push(performance.now() - t);
       }
-      steps.push(r!.ok ? r!.iterations : -1);
-      if (r!.ok) {
-        residual = Math.max(residual, r!.residual);
-        tube = r!.t;
-      }
-      ms.push(median(times));
     }
-    polishRows.push({ weave: entry.spec, method, struts: cases[0]!.active.length, newtonSteps: steps, residual, totalMs: ms.reduce((a, b) => a + b, 0), tube });
+    for (const method of METHODS) {
+      const r = last[method]!;
+      steps[method].push(r.ok ? r.iterations : -1);
+      if (r.ok) {
+        residual[method] = Math.max(residual[method], r.residual);
+        tube[method] = r.t;
+      }
+      ms[method].push(median(times[method]));
+    }
+  }
+  // One KKT Jacobian (the Hessian block is where the routes differ) at the first nearby start, many times.
+  const c0 = cases[0]!;
+  const model = periodicKktModel(c0.pc);
+  const jac: Record<Method, number[]> = { exact: [], differenced: [] };
+  for (let k = 0; k < 20 * REPEATS; k++) {
+    for (const method of k % 2 === 0 ? METHODS : [...METHODS].reverse()) {
+      useExactHessian(method === 'exact');
+      const t = performance.now();
+      kktJacobianOf(model, c0.active, new Float64Array(c0.pc.nFree), c0.lambda0, c0.scale);
+      jac[method].push(performance.now() - t);
+    }
+  }
+  for (const method of METHODS) {
+    polishRows.push({
+      jacobianUs: 1000 * median(jac[method]),
+      weave: entry.spec, method, struts: cases[0]!.active.length, newtonSteps: steps[method], residual: residual[method],
+      totalMs: ms[method].reduce((a, b) => a + b, 0), tube: tube[method],
+    });
   }
 }
 useExactHessian(true);
@@ -152,8 +178,8 @@ if (json) {
   console.log(JSON.stringify({ repeats: REPEATS, polish: polishRows, solve: solveRows }, null, 2));
 } else {
   console.log(`Newton polish from ${NEARBY_REL} R off each weave optimum, ${POLISH_STARTS} seeded starts (each timed ${REPEATS} times, median)`);
-  console.log(['weave', 'Hessian', 'active struts', 'Newton steps per start (-1: stalled)', 'worst KKT residual (dimensionless)', 'total time (ms)', 'tube (layout units)'].join(' | '));
-  for (const r of polishRows) console.log([r.weave, r.method, r.struts, r.newtonSteps.join(' '), r.residual.toExponential(2), r.totalMs.toFixed(1), r.tube.toPrecision(13)].join(' | '));
+  console.log(['weave', 'Hessian', 'active struts', 'Newton steps per start (-1: stalled)', 'worst KKT residual (dimensionless)', 'total time (ms)', 'one KKT Jacobian (µs)', 'tube (layout units)'].join(' | '));
+  for (const r of polishRows) console.log([r.weave, r.method, r.struts, r.newtonSteps.join(' '), r.residual.toExponential(2), r.totalMs.toFixed(1), r.jacobianUs.toFixed(0), r.tube.toPrecision(13)].join(' | '));
   console.log(`\nWhole single-start solves to ${TOL} (median of ${REPEATS}; iterations, status and tube of the last)`);
   console.log(['weave', 'Hessian', 'median (s)', 'outer iterations', 'status', 'tube (layout units)', 'last polish'].join(' | '));
   for (const r of solveRows) console.log([r.weave, r.method, r.medianSeconds.toFixed(3), r.iterations, r.status, r.tube.toPrecision(13), /KKT residual[^)]*/.exec(r.message)?.[0] ?? r.message].join(' | '));
