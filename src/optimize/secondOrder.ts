@@ -10,11 +10,21 @@
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { Constraint } from './constraints.js';
 import { kktJacobianOf, type KktModel } from './kktNewton.js';
+import { analyseLdl, factorLdl, SymTriplets } from './step/sparseLdl.js';
 
 /** Multipliers below this fraction of the largest do not restrict the critical subspace. */
 const POSITIVE_FORCE_REL = 1e-9;
 /** Singular values of the active gradients below this fraction of the largest span the critical subspace. */
 const NULL_REL = 1e-9;
+/** Free variables above which the second-order test first tries the sparse inertia test (dense SVD is O(n³)). */
+const SPARSE_TEST_MIN_FREE = 120;
+/** Penalty ε of the inertia test (dimensionless: gradients are unit-sized): 1/ε dwarfs any curvature off the null space. */
+const PENALTY_EPS = 1e-8;
+/**
+ * Shifts tried, smallest first; the first that passes is the reported bound. Rounding in M (entries up to 1/ε)
+ * is about 1e-8, so no shift below 1e-7 is trusted; all lie below CURVATURE_TOL (certificate.ts).
+ */
+const INERTIA_SHIFTS: readonly number[] = [1e-7, 5e-7];
 /** First-order change (dimensionless) of an idle contact still counted as not closing it. */
 const OPENING_TOL = 1e-9;
 
@@ -35,6 +45,10 @@ export function criticalCurvature<C extends Constraint, P>(
 ): Curvature | null {
   const n = model.nFree, m = active.length;
   if (n === 0) return { maxCurvature: 0, direction: null };
+  if (n > SPARSE_TEST_MIN_FREE) {
+    const bound = curvatureBoundByInertia(model, active, lambda, L);
+    if (bound !== null) return { maxCurvature: bound, direction: null };
+  }
   const J = kktJacobianOf(model, active, new Float64Array(n), lambda, L);
   if (J === null) return null;
   let lmax = 0;
@@ -59,6 +73,49 @@ export function criticalCurvature<C extends Constraint, P>(
     }
   }
   return strict;
+}
+
+/**
+ * An upper bound on the largest curvature of W on the critical subspace without dense algebra, or null when
+ * the test does not show it below CURVATURE_TOL (then the dense eigen-decomposition finds the value and the
+ * way out). W - τI is negative definite on the null space of the binding rows A exactly when
+ * M = τI - W + AᵀA/ε is positive definite for small enough ε (a penalty form of the second-order test;
+ * Sylvester's law makes it a count of positive pivots of a sparse LDLᵀ, step/sparseLdl.ts). The null space of
+ * the binding rows contains both subspaces the dense test looks at, so a pass bounds both.
+ */
+export function curvatureBoundByInertia<C extends Constraint, P>(
+  model: KktModel<C, P>, active: C[], lambda: Float64Array, L: number,
+): number | null {
+  if (!model.hessianEntries) return null;
+  const n = model.nFree;
+  const posed = model.posedAt(new Float64Array(n));
+  let lmax = 0;
+  for (const l of lambda) lmax = Math.max(lmax, l);
+  const trip = new SymTriplets(n);
+  const ok = model.hessianEntries(active, posed, lambda, (i, j, v) => trip.add(i, j, -L * v));
+  if (!ok) return null;
+  for (let k = 0; k < active.length; k++) {
+    if (!(lambda[k]! > POSITIVE_FORCE_REL * lmax)) continue;
+    const con = active[k]!;
+    if (!Number.isFinite(model.evaluate(con, posed, false))) return null;
+    const g = Float64Array.from(con.grad);
+    const nz: number[] = [];
+    for (let i = 0; i < n; i++) if (g[i] !== 0) nz.push(i);
+    for (let a = 0; a < nz.length; a++) for (let b = a; b < nz.length; b++) trip.add(nz[a]!, nz[b]!, g[nz[a]!]! * g[nz[b]!]! / PENALTY_EPS);
+  }
+  for (let i = 0; i < n; i++) trip.add(i, i, 0);
+  const { matrix } = trip.toCsc();
+  const base = Float64Array.from(matrix.values);
+  const pattern = analyseLdl(matrix);
+  const diag = new Int32Array(n);
+  for (let j = 0; j < n; j++) diag[j] = matrix.colPtr[j + 1]! - 1;
+  for (const tau of INERTIA_SHIFTS) {
+    matrix.values.set(base);
+    for (let i = 0; i < n; i++) matrix.values[diag[i]!] = matrix.values[diag[i]!]! + tau;
+    const f = factorLdl(pattern, matrix, 1e-300);
+    if (f.zero === 0 && f.positive === n) return tau;
+  }
+  return null;
 }
 
 /** Largest eigenvalue of W on {dz : ∇g_k·dz = 0 for k in rows} (rows of the KKT Jacobian). */
