@@ -148,7 +148,12 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     }
     failures = 0;
     const predicted = step.tau;
-    if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+    // A small gain under a small trust radius is no sign of stationarity (after an escape Δ restarts small,
+    // and the Levenberg–Marquardt step's gain is then about Δ|∇|², tiny however far the optimum is): the SQP
+    // step judges stationarity by the gain the model would promise at the length scale, and steps on while
+    // that is large, letting Δ grow.
+    const promised = loop.stepMethod === 'sqp' ? predicted * Math.max(1, scale / Math.min(delta, box)) : predicted;
+    if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
       // The local model promises little more: finish by Newton, then check the second-order condition.
       const p = loop.polish(state);
       if (p) {
@@ -182,8 +187,8 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
         }
       }
       // Tighten the trigger and keep stepping while the model still promises a gain.
-      while (!(predicted > trigger * state.t) && trigger > loop.finalTol) trigger = Math.max(trigger * 0.01, loop.finalTol);
-      if (!(predicted > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+      while (!(promised > trigger * state.t) && trigger > loop.finalTol) trigger = Math.max(trigger * 0.01, loop.finalTol);
+      if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
         stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
         break;
       }
@@ -276,3 +281,4 @@ function secondOrderCorrection<C extends Constraint, P>(
   const s = sqpStep({ ...input, shift });
   return s.ok ? s.z : null;
 }
+
