@@ -21,6 +21,9 @@ import {
   MAX_STEP_FAILURES, POLISH_TRIGGER_START,
 } from './trustRegion.js';
 
+/** The SQP step stops for lack of gain only below this fraction of the final tolerance. */
+const SQP_FINAL_GAIN_REL = 1e-3;
+
 /** Forces below this fraction of the largest do not count as binding (the escape may open those contacts). */
 const BINDING_FORCE_REL = 1e-9;
 
@@ -186,8 +189,11 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
           continue;
         }
       }
-      // Tighten the trigger and keep stepping while the model still promises a gain.
-      while (!(promised > trigger * state.t) && trigger > loop.finalTol) trigger = Math.max(trigger * 0.01, loop.finalTol);
+      // Tighten the trigger and keep stepping while the model still promises a gain. The SQP step goes on to
+      // a gain well below the tolerance: at a degenerate optimum the gain per step is about the square of the
+      // distance left, so a gain of tol·t can still leave a gap many times tol (necklaces: 8e-9 left).
+      const floor = loop.stepMethod === 'sqp' ? SQP_FINAL_GAIN_REL * loop.finalTol : loop.finalTol;
+      while (!(promised > trigger * state.t) && trigger > floor) trigger = Math.max(trigger * 0.01, floor);
       if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
         stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
         break;
