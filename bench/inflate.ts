@@ -6,10 +6,10 @@
 // Run: npm run build && node dist/bench/inflate.js [--repeats N] [--step sqp|proximal] [--json]
 import { availableParallelism, loadavg } from 'node:os';
 import { fileURLToPath } from 'node:url';
-import { packingBound } from '../src/optimize/bound.js';
-import { verifyOutcome, runMultistart } from '../src/optimize/multistart.js';
-import { solveInflate } from '../src/optimize/solve.js';
-import type { InflateProblem, SolveOutcome } from '../src/optimize/problem.js';
+import { packingBound } from '../src/optimize/certify/bound.js';
+import { verifyOutcome, runMultistart } from '../src/optimize/run/multistart.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
+import type { InflateProblem, SolveOutcome } from '../src/optimize/run/problem.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';

@@ -7,9 +7,9 @@
 // least-squares slope of log(time) against log(N) over the cases in budget. Every result is re-checked by
 // the independent verifier (verifyOutcome).
 // Run: npm run build && node dist/bench/scaling.js [--max 64] [--repeats 1] [--budget 60] [--methods sqp,proximal] [--json]
-import { solveInflate } from '../src/optimize/solve.js';
-import { verifyOutcome } from '../src/optimize/multistart.js';
-import type { InflateProblem } from '../src/optimize/problem.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
+import { verifyOutcome } from '../src/optimize/run/multistart.js';
+import type { InflateProblem } from '../src/optimize/run/problem.js';
 import { resolveSpec } from '../src/model/spec.js';
 
 const SEED = 20261201;

@@ -1,12 +1,12 @@
 // Cost of the many-ring passes: one pair-scan pass of the optimiser (kernel struts of the pairs whose bounding
-// spheres come near, src/optimize/scan.ts) against the all-pairs scan it replaced, and one independent check
+// spheres come near, src/optimize/constraints/scan.ts) against the all-pairs scan it replaced, and one independent check
 // (src/check/verify.ts) of a result, for 2-in-1 chains of N = 64, 256, 1024 rings. The all-pairs scan is the
 // baseline, measured in the same run. Seeded (the chain is built, not drawn), warm-up, median of repeats.
 // Run: npm run build && node dist/bench/scan.js [--repeats N] [--json]
 import { availableParallelism, loadavg } from 'node:os';
 import { verifyConfiguration } from '../src/check/verify.js';
-import { buildChart, posedAt } from '../src/optimize/chart.js';
-import { pairPlan, scanPairs } from '../src/optimize/scan.js';
+import { buildChart, posedAt } from '../src/optimize/chart/chart.js';
+import { pairPlan, scanPairs } from '../src/optimize/constraints/scan.js';
 import { trivialOrbits } from '../src/model/symmetry.js';
 import type { Ring } from '../src/model/types.js';
 import { linkingMatrix } from '../src/topology/index.js';

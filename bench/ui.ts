@@ -23,7 +23,7 @@ import { playView } from '../reports/playView.js';
 import { analyzePlay } from '../src/analyze/play.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
-import { runMultistart } from '../src/optimize/multistart.js';
+import { runMultistart } from '../src/optimize/run/multistart.js';
 import { benchArgs, median } from './stats.js';
 
 const SEED = 20261201;

@@ -12,18 +12,18 @@ import { latticeOffset, periodicLinks } from '../src/model/periodic.js';
 import { ringPairs } from '../src/model/ringPairs.js';
 import type { Lattice, Ring } from '../src/model/types.js';
 import { weaveEntries, weaveLayout } from '../src/model/weaves.js';
-import { certify } from '../src/optimize/certificate.js';
-import { useExactHessian } from '../src/optimize/lagrangianHessian.js';
-import { seededRandom } from '../src/optimize/perturb.js';
-import { angleOf, pointOn } from '../src/optimize/constraints.js';
-import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicPosed } from '../src/optimize/periodicChart.js';
+import { certify } from '../src/optimize/certify/certificate.js';
+import { useExactHessian } from '../src/optimize/constraints/lagrangianHessian.js';
+import { seededRandom } from '../src/optimize/chart/perturb.js';
+import { angleOf, pointOn } from '../src/optimize/constraints/constraints.js';
+import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicPosed } from '../src/optimize/chart/periodicChart.js';
 import {
   evaluatePeriodic, latticeVectors, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint,
-} from '../src/optimize/periodicConstraints.js';
-import { kktJacobianOf } from '../src/optimize/kktNewton.js';
-import { periodicKktModel, polishPeriodic, type PeriodicPolishResult } from '../src/optimize/periodicPolish.js';
-import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/periodicProblem.js';
-import { solvePeriodic } from '../src/optimize/periodicSolve.js';
+} from '../src/optimize/constraints/periodicConstraints.js';
+import { kktJacobianOf } from '../src/optimize/certify/kktNewton.js';
+import { periodicKktModel, polishPeriodic, type PeriodicPolishResult } from '../src/optimize/certify/periodicPolish.js';
+import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/periodicProblem.js';
+import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
 import { benchArgs, median } from './stats.js';
 
 const SEED = 20261201;

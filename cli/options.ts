@@ -4,7 +4,7 @@ import type { Command } from 'commander';
 import { InputError } from '../src/model/errors.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
 import type { Layout, Symmetry } from '../src/model/types.js';
-import { defaultWorkers } from '../src/optimize/pool.js';
+import { defaultWorkers } from '../src/optimize/run/pool.js';
 
 export interface SolveCliOptions {
   radii?: number[];

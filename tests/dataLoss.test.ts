@@ -10,8 +10,8 @@ import { describe, expect, it, vi } from 'vitest';
 import { run } from './cliHarness.js';
 import { tightHopf } from './fabricateFixtures.js';
 
-vi.mock('../src/optimize/multistart.js', async (importOriginal) => {
-  const orig = await importOriginal<typeof import('../src/optimize/multistart.js')>();
+vi.mock('../src/optimize/run/multistart.js', async (importOriginal) => {
+  const orig = await importOriginal<typeof import('../src/optimize/run/multistart.js')>();
   return {
     ...orig,
     runMultistart: async (...args: Parameters<typeof orig.runMultistart>) => ({ ...(await orig.runMultistart(...args)), status: 'failed' as const }),

@@ -7,9 +7,9 @@ import { verifyRings } from '../src/check/verify.js';
 import { InputError } from '../src/model/errors.js';
 import type { SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
-import { runMultistart, startSeed, type MultistartOptions, type StartProgress } from '../src/optimize/multistart.js';
-import type { InflateProblem } from '../src/optimize/problem.js';
-import type { StartHeartbeat } from '../src/optimize/startLoop.js';
+import { runMultistart, startSeed, type MultistartOptions, type StartProgress } from '../src/optimize/run/multistart.js';
+import type { InflateProblem } from '../src/optimize/run/problem.js';
+import type { StartHeartbeat } from '../src/optimize/run/startLoop.js';
 
 function problemOf(spec: string): InflateProblem {
   const r = resolveSpec(spec);

@@ -1,8 +1,8 @@
 // Circle-packing bound and the non-negative least squares used by the certificate.
 import { Matrix, solve } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
-import { packingBound, packingRadius, withGap } from '../src/optimize/bound.js';
-import { nnls } from '../src/optimize/nnls.js';
+import { packingBound, packingRadius, withGap } from '../src/optimize/certify/bound.js';
+import { nnls } from '../src/optimize/certify/nnls.js';
 import type { Ring } from '../src/model/types.js';
 import { rng } from './reference/rng.js';
 

@@ -4,10 +4,10 @@
 // trip the nlopt-js WebAssembly abort (field-notes.md); the worker pool isolates everything else.
 import { describe, expect, it } from 'vitest';
 import { star } from './optimizeLayouts.js';
-import { packingBound, packingRadius } from '../src/optimize/bound.js';
-import { solveInflate } from '../src/optimize/solve.js';
-import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
-import { chain3Start, hopfStart, torusLinkStart } from '../src/optimize/testPoses.js';
+import { packingBound, packingRadius } from '../src/optimize/certify/bound.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
+import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/run/problem.js';
+import { chain3Start, hopfStart, torusLinkStart } from '../src/optimize/run/testPoses.js';
 import { catalogLayout } from '../src/model/catalog.js';
 import { symmetryDeparture } from '../src/model/symmetry.js';
 import type { Ring, Symmetry, Vec3 } from '../src/model/types.js';

@@ -7,7 +7,7 @@ import {
   applySymmetry, parseSymmetryOption, ringOrbits, symmetrize, symmetryDeparture, symmetryElements,
 } from '../src/model/symmetry.js';
 import type { Ring, Symmetry } from '../src/model/types.js';
-import { torusLinkStart } from '../src/optimize/testPoses.js';
+import { torusLinkStart } from '../src/optimize/run/testPoses.js';
 import { linkingMatrix } from '../src/topology/index.js';
 
 const C3: Symmetry = { type: 'cyclic', order: 3, axis: [0, 0, 1], origin: [0, 0, 0] };

@@ -5,8 +5,8 @@
 // centre (common practice, no source) and two circles link only if each meets the other's disk (Rolfsen,
 // Knots and Links, 1976, ch. 5D: the disk is a Seifert surface), which lies in that sphere.
 import { describe, expect, it } from 'vitest';
-import { buildChart, posedAt } from '../src/optimize/chart.js';
-import { linkingHolds, periodicNearPairs, pairPlan, scanMargin, scanPairs } from '../src/optimize/scan.js';
+import { buildChart, posedAt } from '../src/optimize/chart/chart.js';
+import { linkingHolds, periodicNearPairs, pairPlan, scanMargin, scanPairs } from '../src/optimize/constraints/scan.js';
 import { catalogLayout } from '../src/model/catalog.js';
 import { ringPairs } from '../src/model/ringPairs.js';
 import { ringOrbits, trivialOrbits, type RingOrbits } from '../src/model/symmetry.js';

@@ -28,12 +28,12 @@ import { ringPairs } from '../src/model/ringPairs.js';
 import type { Lattice, Ring, Vec3 } from '../src/model/types.js';
 import { rotate } from '../src/model/vec.js';
 import { weaveLayout } from '../src/model/weaves.js';
-import { CURVATURE_TOL } from '../src/optimize/certificate.js';
-import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from '../src/optimize/periodicChart.js';
-import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicScan } from '../src/optimize/periodicConstraints.js';
-import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/periodicMultistart.js';
-import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/periodicProblem.js';
-import { solvePeriodic } from '../src/optimize/periodicSolve.js';
+import { CURVATURE_TOL } from '../src/optimize/certify/certificate.js';
+import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from '../src/optimize/chart/periodicChart.js';
+import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicScan } from '../src/optimize/constraints/periodicConstraints.js';
+import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/run/periodicMultistart.js';
+import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/periodicProblem.js';
+import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
 
 function problemOf(spec: string): PeriodicProblem {
   const layout = weaveLayout(spec);

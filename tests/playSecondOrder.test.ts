@@ -8,7 +8,7 @@ import type { RingPose } from '../src/analyze/mobilityMotion.js';
 import { ringDistance } from '../src/kernel/index.js';
 import { linkingMatrix, linkingNumber } from '../src/topology/index.js';
 import { catalogLayout } from '../src/model/catalog.js';
-import { solveInflate } from '../src/optimize/solve.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
 import type { Symmetry, Vec3 } from '../src/model/types.js';
 import { rotate } from '../src/model/vec.js';
 import { resultOf, type RingSpec } from './playFixtures.js';
@@ -166,7 +166,7 @@ describe('torus:3 symmetric optimum (three pairwise-linked rings, D3 symmetry)',
   });
 
   it('the optimizer finds the same symmetric optimum, and re-inflating from the escape ends thicker', async () => {
-    // The optimizer (src/optimize/solve.ts) with dihedral:3 imposed must reproduce the direct search above; the
+    // The optimizer (src/optimize/run/solve.ts) with dihedral:3 imposed must reproduce the direct search above; the
     // escape then leads, without symmetry, to a strictly thicker Kuhn–Tucker point (the point of `compare`).
     const layout = catalogLayout('torus:3');
     const linking = linkingMatrix(layout.rings);

@@ -7,12 +7,12 @@
 // Discrete Math. 181, 1998; bound.ts), which the solve cannot know better than.
 import { describe, expect, it } from 'vitest';
 import { star } from './optimizeLayouts.js';
-import { packingBound, packingRadius } from '../src/optimize/bound.js';
-import { verifyOutcome } from '../src/optimize/multistart.js';
-import type { InflateProblem, SolveOptions } from '../src/optimize/problem.js';
-import { solveInflate } from '../src/optimize/solve.js';
-import { solvePeriodic } from '../src/optimize/periodicSolve.js';
-import { hopfStart } from '../src/optimize/testPoses.js';
+import { packingBound, packingRadius } from '../src/optimize/certify/bound.js';
+import { verifyOutcome } from '../src/optimize/run/multistart.js';
+import type { InflateProblem, SolveOptions } from '../src/optimize/run/problem.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
+import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
+import { hopfStart } from '../src/optimize/run/testPoses.js';
 import { periodicLinks } from '../src/model/periodic.js';
 import { weaveLayout } from '../src/model/weaves.js';
 import type { Ring, Symmetry, Vec3 } from '../src/model/types.js';

@@ -1,12 +1,12 @@
-// The sparse second-order test (src/optimize/secondOrder.ts curvatureBoundByInertia: inertia of a penalised
+// The sparse second-order test (src/optimize/certify/secondOrder.ts curvatureBoundByInertia: inertia of a penalised
 // matrix, Sylvester's law of inertia) against the dense definition computed with ml-matrix, a general-purpose
 // reference library: the largest eigenvalue of Nᵀ W N, N an orthonormal basis of the null space of the
 // binding constraint gradients (SVD). On synthetic models with a known W and known gradient rows.
 import { describe, expect, it } from 'vitest';
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
-import { curvatureBoundByInertia } from '../src/optimize/secondOrder.js';
-import type { KktModel } from '../src/optimize/kktNewton.js';
-import { newConstraint, type Constraint } from '../src/optimize/constraints.js';
+import { curvatureBoundByInertia } from '../src/optimize/certify/secondOrder.js';
+import type { KktModel } from '../src/optimize/certify/kktNewton.js';
+import { newConstraint, type Constraint } from '../src/optimize/constraints/constraints.js';
 
 function rng(seed: number): () => number {
   let a = seed >>> 0;

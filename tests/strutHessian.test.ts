@@ -1,9 +1,9 @@
-// The curvature of a strut (src/optimize/strutHessian.ts, derived by hand from the envelope and implicit
+// The curvature of a strut (src/optimize/constraints/strutHessian.ts, derived by hand from the envelope and implicit
 // function theorems) against second differences of the exact kernel's contact distance under rigid motions.
 import { describe, expect, it } from 'vitest';
 import { closestPointOnCircle, pointCircleDistance, ringDistance } from '../src/kernel/index.js';
-import { expMap } from '../src/optimize/rotation.js';
-import { strutHessian } from '../src/optimize/strutHessian.js';
+import { expMap } from '../src/optimize/chart/rotation.js';
+import { strutHessian } from '../src/optimize/constraints/strutHessian.js';
 import { applyRotation, randomUnit, rng } from './reference/rng.js';
 
 type V = [number, number, number];

@@ -1,15 +1,15 @@
-// The solver's worker pool for the page: the same contract as src/optimize/pool.ts (which the vite build
+// The solver's worker pool for the page: the same contract as src/optimize/run/pool.ts (which the vite build
 // swaps for this file), on Web Workers through comlink instead of worker_threads. A WebAssembly abort in
 // NLopt ends only its worker; the lane starts a fresh one and retries with the next algorithm.
 // stopPool() ends every running solve (the page's Stop button).
 import * as Comlink from 'comlink';
 import type { Algorithm, WorkerTask } from '../workers/solve.js';
-import type { SolveOutcome } from '../src/optimize/problem.js';
-import type { PoolOptions, PoolResult, PoolTask } from '../src/optimize/pool.js';
+import type { SolveOutcome } from '../src/optimize/run/problem.js';
+import type { PoolOptions, PoolResult, PoolTask } from '../src/optimize/run/pool.js';
 import type { PageSolveApi } from './solveWorker.js';
 
 export type { Algorithm, WorkerTask } from '../workers/solve.js';
-export type { PoolOptions, PoolResult, PoolTask } from '../src/optimize/pool.js';
+export type { PoolOptions, PoolResult, PoolTask } from '../src/optimize/run/pool.js';
 
 export const ALGORITHM_ORDER: readonly Algorithm[] = ['slsqp', 'ccsaq', 'mma'];
 

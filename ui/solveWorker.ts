@@ -3,8 +3,8 @@
 import './shims/atobBuffer.js';
 import * as Comlink from 'comlink';
 import type { WorkerTask } from '../workers/solve.js';
-import type { SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
-import { solveInflate } from '../src/optimize/solve.js';
+import type { SolveOptions, SolveOutcome } from '../src/optimize/run/problem.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
 import { releaseProgress, throttledProgress } from '../workers/progress.js';
 
 /** Iteration reports at most this often (milliseconds): enough for a smooth on-screen tube. */

@@ -8,7 +8,7 @@ import { defineConfig, type Plugin } from 'vite';
 const here = dirname(fileURLToPath(import.meta.url));
 const shim = (name: string): string => resolve(here, 'shims', name);
 
-/** The solver's worker pool (src/optimize/pool.ts, node:worker_threads) becomes a Web Worker pool. */
+/** The solver's worker pool (src/optimize/run/pool.ts, node:worker_threads) becomes a Web Worker pool. */
 function browserPool(): Plugin {
   return {
     name: 'thickring-browser-pool',

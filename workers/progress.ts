@@ -1,7 +1,7 @@
 // The solve workers' progress plumbing, shared by the Node worker (workers/solve.ts) and the page's Web
 // Worker (ui/solveWorker.ts): nothing here touches Node or the DOM.
 import * as Comlink from 'comlink';
-import type { SolveOptions } from '../src/optimize/problem.js';
+import type { SolveOptions } from '../src/optimize/run/problem.js';
 
 export type Progress = (iteration: number, tube: number) => void;
 

@@ -1,13 +1,13 @@
-// Worker thread that runs one inflation solve at a time for src/optimize/pool.ts, exposed with comlink.
+// Worker thread that runs one inflation solve at a time for src/optimize/run/pool.ts, exposed with comlink.
 // A WebAssembly abort inside NLopt ("Exception catching is disabled") cannot be caught; here it ends
 // only this thread, and the pool starts a fresh worker and retries with another algorithm.
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/esm/node-adapter.mjs';
 import { parentPort } from 'node:worker_threads';
-import { isPeriodicProblem, type PeriodicProblem } from '../src/optimize/periodicProblem.js';
-import { solvePeriodic } from '../src/optimize/periodicSolve.js';
-import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/problem.js';
-import { solveInflate } from '../src/optimize/solve.js';
+import { isPeriodicProblem, type PeriodicProblem } from '../src/optimize/run/periodicProblem.js';
+import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
+import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/run/problem.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
 import { releaseProgress, throttledProgress } from './progress.js';
 
 export type Algorithm = NonNullable<SolveOptions['algorithm']>;

@@ -11,8 +11,8 @@ import type { CompareResult, SolveResult } from '../model/result.js';
 import type { ResolvedSpec } from '../model/spec.js';
 import { ringOrbits, symmetryDeparture } from '../model/symmetry.js';
 import type { Ring, Symmetry } from '../model/types.js';
-import { runMultistart, type StartProgress } from '../optimize/multistart.js';
-import type { InflateProblem } from '../optimize/problem.js';
+import { runMultistart, type StartProgress } from '../optimize/run/multistart.js';
+import type { InflateProblem } from '../optimize/run/problem.js';
 
 export interface CompareOptions {
   /** Symmetry to compare against; undefined: the layout's symmetry section, else the catalogue entry's natural one. */

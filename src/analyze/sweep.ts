@@ -15,8 +15,8 @@ import { alignRings, applyAlignment } from './align.js';
 import type { ResultRing, SolveResult, SweepPoint, Verification } from '../model/result.js';
 import { ringOrbits, symmetryDeparture, type RingOrbits } from '../model/symmetry.js';
 import type { Ring, SolveStatus, Symmetry } from '../model/types.js';
-import { runMultistart } from '../optimize/multistart.js';
-import type { InflateProblem } from '../optimize/problem.js';
+import { runMultistart } from '../optimize/run/multistart.js';
+import type { InflateProblem } from '../optimize/run/problem.js';
 
 export interface SweepOptions {
   tol: number;

@@ -10,7 +10,7 @@
 // converges superlinearly, where the proximal step (W = 0) crept along flat valleys. The QP is solved by the
 // sparse interior-point method (interiorQp.ts): a strut row touches the 12 coordinates of its two rings and
 // W is block-sparse on the contact graph, so a step costs time linear in the rings for chains and necklaces.
-import type { Constraint } from '../constraints.js';
+import type { Constraint } from '../constraints/constraints.js';
 import { solveQpInterior } from './interiorQp.js';
 
 export interface SqpStepInput {

@@ -1,0 +1,69 @@
+// Upper bound on the common tube from circle packing in a circle.
+//
+// If k rings pass through ring i (linking number ±1: a round circle then crosses i's flat disk exactly
+// once), their cores pierce the disk at points p_j with |p_j - p_l| >= r_j + r_l (the tubes are disjoint)
+// and at distance >= r_i + r_j from i's core, i.e. |p_j - c_i| <= R_i - r_i - r_j. With r = t·w_min
+// (the thinnest of the k tubes) the disks of radius r about the p_j are disjoint and lie in the disk of
+// radius R_i - r_i about c_i, so r / (R_i - r_i) <= r_k, the best radius of k equal circles packed in a unit
+// circle. Solving t·w_min <= r_k (R_i - t·w_i) for t:
+//     t <= r_k R_i / (w_min + r_k w_i).
+// k = 1 gives R/2 for equal rings (Cantarella–Kusner–Sullivan 2002: a linked component has length >= 4π at
+// unit thickness), k = 2 gives R/3. A ring no ring passes through still needs t·w_i <= R_i.
+import type { Bound } from '../../model/result.js';
+import type { Ring } from '../../model/types.js';
+
+/**
+ * r_k for k = 1..8 (Graham, Lubachevsky, Nurmela, Östergård, Discrete Math. 181, 1998; Kravitz, Math. Mag.
+ * 40, 1967). Beyond 8 the area bound 1/√k, capped by r_8 (dropping rings from a packing keeps it valid).
+ */
+export function packingRadius(k: number): number {
+  switch (k) {
+    case 0:
+    case 1:
+      return 1;
+    case 2:
+      return 1 / 2;
+    case 3:
+      return 2 * Math.sqrt(3) - 3;
+    case 4:
+      return Math.SQRT2 - 1;
+    case 5:
+      return 1 / (1 + 1 / Math.sin(Math.PI / 5));
+    case 6:
+    case 7:
+      return 1 / 3;
+    case 8:
+      return 1 / (1 + 1 / Math.sin(Math.PI / 7));
+    default:
+      return Math.min(1 / Math.sqrt(k), packingRadius(8));
+  }
+}
+
+/**
+ * Smallest bound over rings; `gap` is left 0 (fill it with withGap once the tube is known).
+ * Null when there are no rings.
+ */
+export function packingBound(rings: Ring[], tubeRatios: number[], linking: number[][]): Bound | null {
+  let best: Bound | null = null;
+  for (let i = 0; i < rings.length; i++) {
+    const R = rings[i]!.radius;
+    const wi = tubeRatios[i] ?? 1;
+    let k = 0;
+    let wMin = Infinity;
+    for (let j = 0; j < rings.length; j++) {
+      if (j === i || (linking[i]?.[j] ?? 0) === 0) continue;
+      k++;
+      wMin = Math.min(wMin, tubeRatios[j] ?? 1);
+    }
+    const rk = packingRadius(k);
+    const tube = k === 0 ? R / wi : (rk * R) / (wMin + rk * wi);
+    if (best === null || tube < best.tube) best = { tube, ring: i, through: k, gap: 0 };
+  }
+  return best;
+}
+
+/** The bound with its gap (bound - tube) / bound filled in. */
+export function withGap(bound: Bound | null, tube: number): Bound | null {
+  if (bound === null) return null;
+  return { ...bound, gap: bound.tube > 0 ? (bound.tube - tube) / bound.tube : 0 };
+}

@@ -1,0 +1,290 @@
+// The outer trust-region loop on the max–min problem, shared by the ring solver (solve.ts) and the weave
+// solver (periodicSolve.ts), which hand it their chart through the hooks of OuterLoop.
+//
+// At the current arrangement the constraints near touching are linearised in the chart and the proximal QP
+// (localStep.ts) proposes a step, judged on the exact kernel: the true tube of the new arrangement against
+// the predicted gain, with the caller's admissibility (linking, departure bound) re-checked; the radius
+// shrinks on rejection and grows on success, so the tube never decreases (settings in trustRegion.ts). Once
+// the predicted gain is small, the caller's Newton polish finishes, and its assessment (first-order
+// certificate and second-order test, secondOrder.ts) tells a maximum from a saddle. At a saddle the loop
+// steps off along the ascent direction keeping the binding contacts (saddleEscape.ts) and climbs again, at
+// most maxEscapes times; a symmetric arrangement is often a maximum among symmetric ones but a saddle among
+// all. The best polished point is reported unless the loop ended higher without one.
+import type { CertifyOutput } from '../certify/certificate.js';
+import type { Constraint } from '../constraints/constraints.js';
+import { localStep, type InnerAlgorithm } from './localStep.js';
+import { carryMultipliers, sqpStep, type SqpStepInput } from './sqpStep.js';
+import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
+import type { SolveOutcome } from '../run/problem.js';
+import {
+  ACCEPT_RATIO, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO, MARGIN_BOXES,
+  MAX_STEP_FAILURES, POLISH_TRIGGER_START,
+} from './trustRegion.js';
+
+/** The SQP step stops for lack of gain only below this fraction of the final tolerance. */
+const SQP_FINAL_GAIN_REL = 1e-3;
+
+/** Forces below this fraction of the largest do not count as binding (the escape may open those contacts). */
+const BINDING_FORCE_REL = 1e-9;
+
+/** The chart at the current arrangement (coordinates z, origin at the arrangement). */
+export interface LoopChart<S extends { t: number }, C extends Constraint, P> extends EscapeChart<S, C, P> {
+  nFree: number;
+  /** Constraints within `margin` (layout units) of touching, with their gradients at z = 0. */
+  constraints(margin: number): Constraint[];
+}
+
+export interface Polished<S> {
+  state: S;
+  /** Slack threshold (relative to the tube) of the active set that polished. */
+  activeTol: number;
+  message: string;
+}
+
+/** The assessment of an arrangement: its certificate and, at a saddle, the way off. */
+export interface Assessed<S extends { t: number }, C extends Constraint> {
+  state: S;
+  cert: CertifyOutput;
+  /** Ascent direction (chart coordinates at `state`) when the point is a saddle. */
+  escape: Float64Array | null;
+  /** Contacts with positive force, which the escape keeps touching. */
+  binding: C[];
+  polishMessage: string | null;
+}
+
+/** What differs between the charts: how to linearise, polish, assess and judge an arrangement. */
+export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A extends Assessed<S, C>> {
+  /** Length scale (the smallest core radius, layout units). */
+  scale: number;
+  /** Largest tube the radius limit allows (layout units). */
+  tMax: number;
+  finalTol: number;
+  algorithm: InnerAlgorithm;
+  /** 'sqp': the second-order step (step/sqpStep.ts); 'proximal': the first-order proximal QP (localStep.ts). */
+  stepMethod: StepMethod;
+  maxIterations: number;
+  maxEscapes: number;
+  /** Escape step sizes tried in turn (relative to `scale`). */
+  escapeSizes: readonly number[];
+  onIteration?: ((iteration: number, tube: number) => void) | undefined;
+  /** Date.now() milliseconds at which to stop (SolveOptions.deadline). */
+  deadline?: number | undefined;
+  chart(state: S): LoopChart<S, C, P>;
+  /** Beyond a positive tube: the linking and any departure bound hold. */
+  admissible(state: S): boolean;
+  polish(state: S): Polished<S> | null;
+  assess(state: S, polished: Polished<S> | null): A;
+}
+
+export type StepMethod = 'sqp' | 'proximal';
+
+export interface LoopRun<A> {
+  /** The reported point (the best polished one unless the loop ended higher without one). */
+  fin: A;
+  status: SolveOutcome['status'];
+  message: string;
+  iterations: number;
+  /** Tube after each outer iteration, starting with the start's. */
+  history: number[];
+  escapes: number;
+  stopReason: string;
+}
+
+export async function runOuterLoop<S extends { t: number }, C extends Constraint, P, A extends Assessed<S, C>>(
+  start: S, loop: OuterLoop<S, C, P, A>,
+): Promise<LoopRun<A>> {
+  const scale = loop.scale;
+  let state = start;
+  let iterations = 0;
+  const history = [state.t];
+  let delta = DELTA_START_REL * scale;
+  let trigger = POLISH_TRIGGER_START;
+  let best: A | null = null;
+  let escapes = 0;
+  let failures = 0;
+  let stopReason = 'iteration limit';
+  /** The last SQP step's constraints and multipliers, whose curvature the next step's model uses. */
+  let carried: { cons: Constraint[]; lambda: Float64Array } | null = null;
+  const record = (): void => {
+    history.push(state.t);
+    loop.onIteration?.(iterations, state.t);
+  };
+  const stepOff = (fin: A): S | null =>
+    escapeSaddle(loop.chart(state), fin.binding, fin.escape!, state.t, scale, loop.escapeSizes, (s) => loop.admissible(s));
+  /** After an escape the trust region restarts at the escape's scale and the polish trigger at its start. */
+  const restart = (off: S): void => {
+    state = off;
+    delta = ESCAPE_STEPS_REL[0]! * scale;
+    trigger = POLISH_TRIGGER_START;
+  };
+
+  while (iterations < loop.maxIterations) {
+    if (loop.deadline !== undefined && Date.now() >= loop.deadline) {
+      stopReason = 'time limit';
+      break;
+    }
+    const chart = loop.chart(state);
+    const box = Math.min(delta, BOX_MAX_REL * scale);
+    const cons = chart.constraints(MARGIN_BOXES * box);
+    let step: { ok: boolean; z: Float64Array; tau: number };
+    let sqpInput: SqpStepInput | null = null;
+    if (loop.stepMethod === 'sqp') {
+      const lambda = carried ? carryMultipliers(carried.cons, carried.lambda, cons) : new Float64Array(cons.length);
+      const W = lagrangianEntries(chart, cons, lambda);
+      sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline };
+      const s = sqpStep(sqpInput);
+      if (s.ok) carried = { cons, lambda: s.lambda };
+      step = s;
+    } else {
+      step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);
+    }
+    iterations++;
+    if (!step.ok) {
+      failures++;
+      delta *= 0.25;
+      record();
+      if (failures > MAX_STEP_FAILURES || delta < DELTA_MIN_REL * scale) {
+        stopReason = 'the local solver failed';
+        break;
+      }
+      continue;
+    }
+    failures = 0;
+    const predicted = step.tau;
+    // A small gain under a small trust radius is no sign of stationarity (after an escape Δ restarts small,
+    // and the Levenberg–Marquardt step's gain is then about Δ|∇|², tiny however far the optimum is): the SQP
+    // step judges stationarity by the gain the model would promise at the length scale, and steps on while
+    // that is large, letting Δ grow.
+    const promised = loop.stepMethod === 'sqp' ? predicted * Math.max(1, scale / Math.min(delta, box)) : predicted;
+    if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+      // The local model promises little more: finish by Newton, then check the second-order condition.
+      const p = loop.polish(state);
+      if (p) {
+        state = p.state;
+        record();
+        const fin = loop.assess(state, p);
+        if (best === null || fin.state.t >= best.state.t) best = fin;
+        if (fin.escape === null || escapes >= loop.maxEscapes) {
+          stopReason = 'polished';
+          break;
+        }
+        // A saddle: step off it along the ascent direction and climb again.
+        escapes++;
+        const off = stepOff(fin);
+        if (off === null) {
+          stopReason = 'polished (saddle, no way off found)';
+          break;
+        }
+        restart(off);
+        continue;
+      }
+      // No polish: perhaps a saddle the first-order model cannot leave (its gain there is second order).
+      if (escapes < loop.maxEscapes) {
+        const here = loop.assess(state, null);
+        const off = here.escape ? stepOff(here) : null;
+        if (off) {
+          escapes++;
+          restart(off);
+          record();
+          continue;
+        }
+      }
+      // Tighten the trigger and keep stepping while the model still promises a gain. The SQP step goes on to
+      // a gain well below the tolerance: at a degenerate optimum the gain per step is about the square of the
+      // distance left, so a gain of tol·t can still leave a gap many times tol (necklaces: 8e-9 left).
+      const floor = loop.stepMethod === 'sqp' ? SQP_FINAL_GAIN_REL * loop.finalTol : loop.finalTol;
+      while (!(promised > trigger * state.t) && trigger > floor) trigger = Math.max(trigger * 0.01, floor);
+      if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+        stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
+        break;
+      }
+    }
+    let next = chart.at(step.z);
+    let ratio = (next.t - state.t) / predicted;
+    if (sqpInput !== null && ratio < GROW_RATIO) {
+      // Second-order correction: the struts that limit the tube after the step are those whose own curvature
+      // shortened them, which the force-weighted model averages away; shift each row by its curvature
+      // at the step and solve again (Fletcher, Practical Methods of Optimization, 2nd ed., §14.4).
+      const corrected = secondOrderCorrection(chart, sqpInput, step.z);
+      if (corrected !== null) {
+        const alt = chart.at(corrected);
+        const altRatio = (alt.t - state.t) / predicted;
+        if (altRatio > ratio) {
+          next = alt;
+          ratio = altRatio;
+        }
+      }
+    }
+    if (next.t > 0 && ratio >= ACCEPT_RATIO && loop.admissible(next)) {
+      state = next;
+      if (ratio >= GROW_RATIO) delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
+    } else {
+      delta *= 0.25;
+    }
+    record();
+  }
+
+  let fin = best;
+  if (fin === null || state.t > fin.state.t * (1 + loop.finalTol)) fin = loop.assess(state, null);
+  const status = fin.cert.certificate.certified
+    ? 'optimal'
+    : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
+  const message =
+    `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
+    ` (${stopReason}${fin.polishMessage ? `: ${fin.polishMessage}` : ''}${escapes > 0 ? `; left ${escapes} saddle(s)` : ''}); ` +
+    `tube ${fin.state.t} (layout units)`;
+  return { fin, status, message, iterations, history, escapes, stopReason };
+}
+
+/** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */
+export function bindingContacts<C extends Constraint>(active: readonly C[], lambda: Float64Array): C[] {
+  const lmax = Math.max(0, ...lambda);
+  return active.filter((_, k) => lambda[k]! > BINDING_FORCE_REL * lmax);
+}
+
+/** Upper-triangle entries of W = Σ λ_k ∇²g_k at the chart's origin (none where the chart cannot give it). */
+function lagrangianEntries<C extends Constraint, P>(
+  chart: LoopChart<{ t: number }, C, P>, cons: readonly Constraint[], lambda: Float64Array,
+): { i: number[]; j: number[]; v: number[] } {
+  const out = { i: [] as number[], j: [] as number[], v: [] as number[] };
+  const keep: Constraint[] = [], lam: number[] = [];
+  cons.forEach((c, k) => {
+    if (lambda[k]! > 0 && (c.kind === 'strut' || c.kind === 'sample')) {
+      keep.push(c);
+      lam.push(lambda[k]!);
+    }
+  });
+  if (keep.length === 0 || !chart.model.hessianEntries) return out;
+  const posed = chart.model.posedAt(new Float64Array(chart.nFree));
+  const ok = chart.model.hessianEntries(keep as unknown as C[], posed, Float64Array.from(lam), (i, j, v) => {
+    out.i.push(i);
+    out.j.push(j);
+    out.v.push(v);
+  });
+  if (!ok) return { i: [], j: [], v: [] };
+  return out;
+}
+
+/**
+ * The step again with every row shifted by what the linearisation missed at z (g_k(z) - g_k - G_k·z), or
+ * null when a strut was lost at z or the QP failed.
+ */
+function secondOrderCorrection<C extends Constraint, P>(
+  chart: LoopChart<{ t: number }, C, P>, input: SqpStepInput, z: Float64Array,
+): Float64Array | null {
+  const n = chart.nFree;
+  const posed = chart.model.posedAt(z);
+  const shift = new Float64Array(input.cons.length);
+  for (let k = 0; k < input.cons.length; k++) {
+    const con = input.cons[k]!;
+    if (con.kind !== 'strut' && con.kind !== 'sample') continue;
+    const g = chart.model.evaluate(chart.model.copy(con as C), posed, false);
+    if (!Number.isFinite(g)) return null;
+    let lin = con.g;
+    for (let i = 0; i < n; i++) lin += con.grad[i]! * z[i]!;
+    shift[k] = g - lin;
+  }
+  const s = sqpStep({ ...input, shift });
+  return s.ok ? s.z : null;
+}
+
