@@ -8,7 +8,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { MEASURE_ALL_PAIRS_MAX, MEASURE_DENSE_LINKING_MAX, type MeasureResult } from '../src/analyze/measure.js';
-import { MAX_LAYOUT_RINGS, MAX_SOLVE_RINGS } from '../src/model/layout.js';
+import { MAX_CELL_RINGS, MAX_LAYOUT_RINGS, MAX_SOLVE_RINGS } from '../src/model/layout.js';
 import { coreDistance } from '../src/check/verify.js';
 import { run } from './cliHarness.js';
 
@@ -101,7 +101,7 @@ describe('measure on many rings', () => {
     expect(io.stderr[0]).toMatch(/rings has 10001 entries, more than the 10000 a layout may hold/);
   });
 
-  it(`a weave cell (layout with a lattice) holds at most ${MAX_SOLVE_RINGS} rings: its pair search grows with the square of the cell`, async () => {
+  it(`a weave cell (layout with a lattice) holds at most ${MAX_CELL_RINGS} rings: its pair search grows with the square of the cell`, async () => {
     const p = join(dir, 'bigcell.json');
     writeFileSync(p, JSON.stringify({ format: 'thickring-layout/1', rings: grid(65), lattice: { vectors: [[100, 0, 0]] } }));
     const { code, io } = await run(['measure', p]);
@@ -110,11 +110,11 @@ describe('measure on many rings', () => {
   });
 
   it(`inflate and compare take at most ${MAX_SOLVE_RINGS} rings from a file: exit 2 naming the limit`, async () => {
-    const path = file('chain65.json', chain(MAX_SOLVE_RINGS + 1));
+    const path = file('chain257.json', chain(MAX_SOLVE_RINGS + 1));
     for (const cmd of ['inflate', 'compare']) {
       const { code, io } = await run([cmd, path, '--starts', '1']);
       expect(code).toBe(2);
-      expect(io.stderr.join('\n')).toMatch(/has 65 rings; inflate and compare solve at most 64/);
+      expect(io.stderr.join('\n')).toMatch(/has 257 rings; inflate and compare solve at most 256/);
     }
   });
 });
