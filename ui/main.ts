@@ -9,6 +9,7 @@ import type { InflateProblem } from '../src/optimize/problem.js';
 import { stopPool, defaultWorkers } from './browserPool.js';
 import { checkPose, openCatalog, openFile, type Design, type PoseCheck } from './model.js';
 import { makeFiles, showCautions } from './make.js';
+import { plotlyLibrary } from './solverAssets.js';
 import { renderResult, fmt } from './resultPanel.js';
 import { View3d, type ViewStrut } from './view3d.js';
 
@@ -391,9 +392,9 @@ $('compare').addEventListener('click', () => void solving('Compare', async () =>
 
 async function plotSweep(result: CompareResult): Promise<void> {
   // plotly is large: load it only when a comparison has a curve to draw.
-  const Plotly = (await import('plotly.js-dist-min')).default as unknown as {
+  const Plotly = await plotlyLibrary<{
     newPlot(el: HTMLElement, data: unknown[], layout: unknown, config: unknown): Promise<unknown>;
-  };
+  }>();
   const pts = [...result.sweep].sort((a, b) => a.epsilon - b.epsilon);
   await Plotly.newPlot($('compare-plot'), [{
     x: pts.map((p) => p.epsilon), y: pts.map((p) => p.tube), mode: 'lines+markers', name: 'tube',
