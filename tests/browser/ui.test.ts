@@ -164,7 +164,8 @@ describe('thickring ui in chromium', () => {
   it('after Compare, the 3D view and the ring list show the chosen point of the sweep (default the best)', async () => {
     const page = await context.newPage();
     const problems: string[] = [];
-    page.on('console', (m) => { if (m.type() === 'error') problems.push(`console: ${m.text()}`); });
+    // The page's worker pool warns about every solve attempt that failed (a thrown error or a dead worker).
+    page.on('console', (m) => { if (m.type() === 'error' || (m.type() === 'warning' && /^solve \d+:/.test(m.text()))) problems.push(`console: ${m.text()}`); });
     page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
     await page.goto(ui.url);
     await page.waitForSelector('body[data-ready]', { state: 'attached', timeout: 60_000 });
