@@ -98,7 +98,7 @@ function pageFiles(): Plugin {
       const html = readFileSync(resolve(here, 'index.html'), 'utf8');
       const entry = '<script type="module" src="./main.ts"></script>';
       if (!html.includes(entry)) throw new Error(`ui/index.html must load the page with ${entry}`);
-      this.emitFile({ type: 'asset', fileName: 'index.html', source: html.replace(entry, '<script src="./assets/page.js"></script>') });
+      this.emitFile({ type: 'asset', fileName: 'index.html', source: html.replace(entry, '<script defer src="./assets/page.js"></script>') });
       const worker = await buildWorker();
       const highs = readFileSync(resolve(here, '../node_modules/highs/build/highs.wasm')).toString('base64');
       this.emitFile({
