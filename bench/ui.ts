@@ -1,7 +1,8 @@
 // Page-load benchmark in Debian chromium (playwright-core), software WebGL as in the browser tests:
-// time to first render and to interactive for the `thickring ui` page and for the HTML report of the
-// README's pendant (torus:3 with cyclic:3 imposed), the former report (plotting library run inline, every
-// plot drawn while loading) beside the current one (library started lazily, plots on screen first).
+// time to first render and to interactive for the `thickring ui` page (served, and exported and opened from
+// disk) and for the HTML report of the README's pendant (torus:3 with cyclic:3 imposed), the former report
+// (plotting library run inline, every plot drawn while loading) beside the current one (library started
+// lazily, plots on screen first).
 // Seeded solve; one warm-up load per page; median of repeats; old and new measured in the same run.
 // Figures per load (milliseconds from navigation start):
 //   first render  = first contentful paint;
@@ -16,7 +17,7 @@ import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium, type BrowserContext } from 'playwright-core';
-import { startUiServer } from '../cli/uiServer.js';
+import { exportPage, startUiServer } from '../cli/uiServer.js';
 import { buildReportHtml } from '../reports/html.js';
 import { loadPlotlySource, loadViewSource } from '../reports/plotlySource.js';
 import { playView } from '../reports/playView.js';
@@ -82,6 +83,8 @@ async function main(): Promise<void> {
   writeFileSync(oldPath, buildReportHtml(result, { plotlySource, play, sourceName: 'pendant.json', eagerPlots: true }).html);
   writeFileSync(newPath, buildReportHtml(result, { plotlySource, viewSource: loadViewSource(), play, sourceName: 'pendant.json' }).html);
   const server = await startUiServer({ host: '127.0.0.1', port: 0, preload: { kind: 'spec', spec: 'torus:3' } });
+  const exported = join(dir, 'ui-export');
+  exportPage(exported, { kind: 'spec', spec: 'torus:3' });
   const profile = mkdtempSync(join(tmpdir(), 'thickring-chromium-'));
   const context = await chromium.launchPersistentContext(profile, {
     executablePath: '/usr/bin/chromium', headless: true, viewport: { width: 1280, height: 800 },
@@ -92,6 +95,7 @@ async function main(): Promise<void> {
     { name: 'report, old (inline plotting, all plots at load)', url: pathToFileURL(oldPath).href, shot: 'bench-report-old.png' },
     { name: 'report, new (lazy plotting, three.js 3D view)', url: pathToFileURL(newPath).href, shot: 'bench-report-new.png' },
     { name: 'thickring ui page (torus:3)', url: server.url, shot: 'bench-ui.png' },
+    { name: 'thickring ui --export, from disk (torus:3)', url: pathToFileURL(join(exported, 'index.html')).href, shot: null },
   ];
   const rows: Record<string, unknown>[] = [];
   try {
@@ -110,7 +114,7 @@ async function main(): Promise<void> {
       if (!json) {
         const row = rows[rows.length - 1]!;
         console.log(`${p.name}: first render ${row['firstRenderMs']} ms, interactive ${row['interactiveMs']} ms, ` +
-          `longest task after ${row['longestTaskAfterMs']} ms, ${p.url.startsWith('file:') ? 'all plots drawn' : 'page wired'} ${row['doneMs']} ms ` +
+          `longest task after ${row['longestTaskAfterMs']} ms, ${p.name.startsWith('report') ? 'all plots drawn' : 'page wired'} ${row['doneMs']} ms ` +
           `(median of ${REPEATS})`);
       }
     }

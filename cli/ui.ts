@@ -36,7 +36,7 @@ export function register(program: Command, io: Io): void {
       if (exportDir !== undefined) {
         const files = exportPage(exportDir, preload);
         emit(io, json, { export: exportDir, files: files.length }, () =>
-          `thickring ui: wrote ${files.length} files to ${exportDir}; open ${exportDir}/index.html through any static file server`);
+          `thickring ui: wrote ${files.length} files to ${exportDir}; open ${exportDir}/index.html from disk or through any static file server`);
         return;
       }
       const host = raw['host'] === undefined ? DEFAULT_HOST : String(raw['host']).trim();

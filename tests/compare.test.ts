@@ -14,7 +14,9 @@ import { verifyConfiguration } from '../src/check/verify.js';
 import { InputError } from '../src/model/errors.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { ringOrbits, symmetryDeparture } from '../src/model/symmetry.js';
-import type { Symmetry, Vec3 } from '../src/model/types.js';
+import type { Ring, Symmetry, Vec3 } from '../src/model/types.js';
+import { solveInflate } from '../src/optimize/solve.js';
+import { linkingMatrix } from '../src/topology/index.js';
 import { normalize, rotate } from '../src/model/vec.js';
 
 const CYCLIC3: Symmetry = { type: 'cyclic', order: 3, axis: [0, 0, 1], origin: [0, 0, 0] };
@@ -179,6 +181,41 @@ describe('symmetric vs broken optimum (runs the optimizer)', () => {
     expect(Math.abs(c.gain)).toBeLessThanOrEqual(1e-6 * c.symmetric.tube);
     for (const p of c.sweep) expect(p.tube).toBeCloseTo(0.5, 7);
   }, 300_000);
+});
+
+describe('the curve\'s departure-bounded solves pair rings as the symmetric optimum does (runs the optimizer)', () => {
+  it('torus:3 under dihedral:3: a start far from symmetric is solved with the reference\'s ring matching', async () => {
+    // A torus:3 arrangement far from its D_3 symmetry (like the unconstrained optimum aligned onto the
+    // symmetric one, where the curve starts one of its paths): nearest images do not pair its own rings
+    // consistently, so the departure bound must take the matching from a symmetric reference.
+    const far: Ring[] = [
+      { name: 'A', center: [0.014, 0, -0.007], normal: normalize([0.151, 0.146, 0.978]), radius: 1 },
+      { name: 'B', center: [-0.059, 0.659, -0.08], normal: normalize([-0.852, -0.016, 0.523]), radius: 1 },
+      { name: 'C', center: [0.046, -0.659, 0.087], normal: normalize([0.771, 0.126, 0.624]), radius: 1 },
+    ];
+    const torus = resolveSpec('torus:3');
+    const D3 = naturalSymmetry(parseCatalogSpec('torus:3'))!;
+    expect(D3).toMatchObject({ type: 'dihedral', order: 3 });
+    // Same link as the catalogue's (every pair linked once: the Gauss linking integral of src/topology).
+    const linking = linkingMatrix(far);
+    expect(linking.map((row) => row.map(Math.abs))).toEqual(torus.linking.map((row) => row.map(Math.abs)));
+    expect(() => ringOrbits(far, D3)).toThrow(/not arranged with this symmetry/);
+    const reference = torus.layout.rings;
+    const orbits = ringOrbits(reference, D3);
+    const epsilon = symmetryDeparture(far, D3, orbits) / 2;
+    const out = await solveInflate(
+      { rings: far, tubeRatios: [1, 1, 1], linking, symmetry: null, departure: { symmetry: D3, epsilon, reference } },
+      { tol: 1e-9, maxIterations: 200, seed: 0, perturbation: 0 },
+    );
+    expect(out.status).toMatch(/optimal|stalled/);
+    // Within ε with the reference's matching, re-checked independently, and below the packing bound:
+    // two rings through each ring, so r <= R/3 (Kravitz 1967; Graham et al. 1998).
+    expect(symmetryDeparture(out.rings, D3, orbits)).toBeLessThanOrEqual(epsilon * (1 + 1e-9));
+    const v = verifyConfiguration({ rings: out.rings, tube: out.tube, linking });
+    expect(v.ok, v.messages.join('; ')).toBe(true);
+    expect(out.tube).toBeGreaterThan(0);
+    expect(out.tube).toBeLessThanOrEqual(1 / 3 + 1e-12);
+  }, 120_000);
 });
 
 describe('thickring compare on the command line, then report (runs the optimizer)', () => {

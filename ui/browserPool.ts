@@ -7,6 +7,7 @@ import type { Algorithm, WorkerTask } from '../workers/solve.js';
 import type { SolveOutcome } from '../src/optimize/run/problem.js';
 import type { PoolOptions, PoolResult, PoolTask } from '../src/optimize/run/pool.js';
 import type { PageSolveApi } from './solveWorker.js';
+import { solverAssets, type SolverAssets } from './solverAssets.js';
 
 export type { Algorithm, WorkerTask } from '../workers/solve.js';
 export type { PoolOptions, PoolResult, PoolTask } from '../src/optimize/run/pool.js';
@@ -37,6 +38,7 @@ export function defaultWorkers(starts: number): number {
 
 export async function runPool(tasks: PoolTask[], options: PoolOptions): Promise<PoolResult[]> {
   const mine = generation;
+  const assets = await solverAssets();
   const count = Math.max(1, Math.min(options.workers, tasks.length));
   const results: PoolResult[] = new Array(tasks.length);
   let next = 0;
@@ -48,7 +50,7 @@ export async function runPool(tasks: PoolTask[], options: PoolOptions): Promise<
         const index = next++;
         const task = tasks[index]!;
         const r = await runTask(task, options, mine, () => {
-          if (thread === null || thread.dead) thread = startThread();
+          if (thread === null || thread.dead) thread = startThread(assets);
           return thread;
         });
         results[index] = r;
@@ -91,8 +93,8 @@ async function runTask(task: PoolTask, options: PoolOptions, mine: number, threa
   return { id: task.id, outcome: null, algorithm: null, retries, errors };
 }
 
-function startThread(): PageThread {
-  const worker = new Worker(new URL('./solveWorker.ts', import.meta.url), { type: 'module' });
+function startThread(assets: SolverAssets): PageThread {
+  const worker = new Worker(assets.workerUrl, { name: 'thickring solve' });
   let reject: (e: Error) => void = () => {};
   const died = new Promise<never>((_, rej) => { reject = rej; });
   died.catch(() => {});
@@ -109,6 +111,7 @@ function startThread(): PageThread {
     worker.terminate();
     reject(new Error(why));
   };
+  void t.api.useHighs(assets.highs).catch(() => {});
   live.add(t);
   return t;
 }

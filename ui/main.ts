@@ -1,6 +1,8 @@
 // The `thickring ui` page: open an arrangement, move rings by hand with a live check, inflate it with the
 // library's solver in Web Workers, compare symmetric and broken optima, and download meshes.
 import { compare } from '../src/analyze/compare.js';
+import type { SweepConfiguration } from '../src/analyze/sweep.js';
+import { ringDistance } from '../src/kernel/index.js';
 import { catalogEntries } from '../src/model/catalog.js';
 import type { SolveResult, CompareResult } from '../src/model/result.js';
 import type { Ring, Vec3 } from '../src/model/types.js';
@@ -9,6 +11,7 @@ import type { InflateProblem } from '../src/optimize/run/problem.js';
 import { stopPool, defaultWorkers } from './browserPool.js';
 import { checkPose, openCatalog, openFile, type Design, type PoseCheck } from './model.js';
 import { makeFiles, showCautions } from './make.js';
+import { drawSweep, sweepChoices, type SweepChoice } from './sweepPick.js';
 import { renderResult, fmt } from './resultPanel.js';
 import { View3d, type ViewStrut } from './view3d.js';
 
@@ -17,6 +20,8 @@ const $ = <T extends HTMLElement>(id: string): T => document.getElementById(id) 
 const PREVIEW_TUBE_REL = 0.06;
 const SEED = 0;
 const TOL = 1e-9;
+/** A pair of a shown sweep point touches when its gap is within this fraction of the tube (the solve's tolerance is 1e-9). */
+const TOUCH_REL = 1e-6;
 
 let design: Design | null = null;
 let selected = 0;
@@ -26,6 +31,8 @@ let lastCheck: PoseCheck | null = null;
 /** What the linking matrix on screen was drawn from (names, linking, changed pairs). */
 let linkingShown = '';
 let running = false;
+/** Tube of the sweep point on show (layout units), when the rings are a chosen point of a comparison's curve. */
+let pointTube: number | null = null;
 
 const view = new View3d($('view'), {
   onDrag(index, center, normal) {
@@ -69,6 +76,8 @@ function load(d: Design): void {
   buildRows();
   $('result').innerHTML = '';
   $('compare-plot').innerHTML = '';
+  $('sweep-pick').hidden = true;
+  pointTube = null;
   if (d.result) renderResult($('result'), d.result, d.known, unitsOf());
   view.show(d.rings, tubes(), struts(), true);
   view.select(selected);
@@ -209,6 +218,10 @@ function editRow(i: number): void {
 function edited(): void {
   if (!design) return;
   say('');
+  if (pointTube !== null) {
+    pointTube = null;
+    view.show(design.rings, tubes(), legend(false), false);
+  }
   if (design.result) {
     design.result = null;
     $('result').innerHTML = '<dt>Result</dt><dd>cleared: the rings were moved (press Inflate)</dd>';
@@ -337,10 +350,12 @@ $('inflate').addEventListener('click', () => void solving('Inflate', async () =>
   const d = design!;
   const p = problem();
   const n = starts();
+  let finished = false;
   const result = await runMultistart(p, {
     starts: n, workers: defaultWorkers(n), seed: SEED, tol: TOL, spec: d.spec, command: 'inflate', units: d.units,
     onIteration: (e) => {
-      if (stopped) return;
+      // Heartbeats travel on their own channel and may land after the result.
+      if (stopped || finished) return;
       $('progress').textContent = `Inflate: start ${e.start + 1} of ${n}, iteration ${e.iteration}, tube ${fmt(e.tube)} ${unitsOf()}`;
       view.setTubes(d.tubeRatios.map((w) => w * e.tube));
     },
@@ -349,11 +364,13 @@ $('inflate').addEventListener('click', () => void solving('Inflate', async () =>
       $('progress').textContent = `Inflate: ${e.done} of ${e.total} starts done; best tube ${Number.isNaN(e.bestTube) ? '—' : fmt(e.bestTube)} ${unitsOf()}`;
     },
   });
+  finished = true;
   if (stopped) {
     view.setTubes(tubes());
     throw new Error('stopped before the solve finished; the rings are as they were');
   }
   if (design !== d) return;
+  pointTube = null;
   d.result = result;
   d.rings = result.rings.map((r) => ({ name: r.name, center: r.center, normal: r.normal, radius: r.radius }));
   buildRows();
@@ -373,34 +390,55 @@ $('compare').addEventListener('click', () => void solving('Compare', async () =>
     spec: d.spec, source: 'file' as const, layout: { format: 'thickring-layout/1' as const, rings, symmetry: d.symmetry },
     linking: d.linking.map((r) => r.slice()), tubeRatios: d.tubeRatios.slice(), notes: [], catalog: null,
   };
+  let configurations: SweepConfiguration[] = [];
   const result: CompareResult = await compare(resolved, {
     symmetry: d.symmetry, tubeRatios: d.tubeRatios, starts: n, workers: defaultWorkers(n), seed: SEED, tol: TOL, sweepPoints: 4,
     onProgress: (e) => {
       if (!stopped) $('progress').textContent = `Compare: ${e.phase} ${e.done} of ${e.total}; best tube ${fmt(e.bestTube)} ${unitsOf()}`;
     },
+    onSweep: (out) => { configurations = out.configurations; },
   });
   if (stopped) throw new Error('stopped before the comparison finished');
+  if (design !== d) return;
   renderResult($('result'), result, d.known, unitsOf());
-  const extra = document.createElement('div');
-  extra.innerHTML = '';
   $('result').insertAdjacentHTML('beforeend',
     `<dt>Symmetric tube</dt><dd>${fmt(result.symmetric.tube)} ${unitsOf()}</dd><dt>Broken tube</dt><dd>${fmt(result.broken.tube)} ${unitsOf()}</dd>` +
     `<dt>Gain</dt><dd>${fmt(result.gainPercent)} % (broken over symmetric)</dd>`);
-  await plotSweep(result);
+  const choices = sweepChoices(result, configurations);
+  if (choices.length === 0) return;
+  await drawSweep(choices, unitsOf(), {
+    plot: $('compare-plot'), box: $('sweep-pick'), slider: $('sweep-point') as HTMLInputElement, text: $('sweep-point-text'),
+  }, (c) => { if (design === d && !running) showPoint(c); });
+  if (design === d) showPoint(choices[Number(($('sweep-point') as HTMLInputElement).value)]!);
 }));
 
-async function plotSweep(result: CompareResult): Promise<void> {
-  // plotly is large: load it only when a comparison has a curve to draw.
-  const Plotly = (await import('plotly.js-dist-min')).default as unknown as {
-    newPlot(el: HTMLElement, data: unknown[], layout: unknown, config: unknown): Promise<unknown>;
-  };
-  const pts = [...result.sweep].sort((a, b) => a.epsilon - b.epsilon);
-  await Plotly.newPlot($('compare-plot'), [{
-    x: pts.map((p) => p.epsilon), y: pts.map((p) => p.tube), mode: 'lines+markers', name: 'tube',
-  }], {
-    margin: { l: 55, r: 10, t: 25, b: 45 }, title: { text: 'Tube against departure from symmetry', font: { size: 13 } },
-    xaxis: { title: { text: `allowed departure (${unitsOf()})` } }, yaxis: { title: { text: `tube radius (${unitsOf()})` } },
-  }, { displaylogo: false, responsive: true });
+/** Show a point of the comparison's curve like an inflate result: its poses in the view and the ring list. */
+function showPoint(c: SweepChoice): void {
+  const d = design!;
+  d.rings = c.rings.map(copyRing);
+  d.result = null;
+  pointTube = c.tube;
+  buildRows();
+  view.show(d.rings, tubes(), touching(d.rings, tubes()), false);
+  view.select(selected);
+  live();
+}
+
+/** Pairs that touch (gap within TOUCH_REL of the tube), drawn as struts of unknown force. */
+function touching(rings: Ring[], tube: number[]): ViewStrut[] {
+  const out: ViewStrut[] = [];
+  for (let i = 0; i < rings.length; i++) {
+    for (let j = i + 1; j < rings.length; j++) {
+      const r = ringDistance(rings[i]!, rings[j]!);
+      const gap = r.distance - tube[i]! - tube[j]!;
+      if (gap > TOUCH_REL * Math.max(tube[i]!, tube[j]!)) continue;
+      for (const c of r.contacts) {
+        if (c.distance - tube[i]! - tube[j]! <= TOUCH_REL * Math.max(tube[i]!, tube[j]!)) out.push({ onA: c.onA, onB: c.onB, force: null });
+      }
+    }
+  }
+  $('legend').innerHTML = out.length ? 'Contacts of the chosen sweep point (forces not computed)' : '';
+  return out;
 }
 
 // ---- make it -----------------------------------------------------------------------------------
@@ -440,6 +478,7 @@ function unitsOf(): string {
 function tubes(): number[] {
   const d = design!;
   if (d.result) return d.result.rings.map((r) => r.tube);
+  if (pointTube !== null) return d.tubeRatios.map((w) => w * pointTube!);
   const base = PREVIEW_TUBE_REL * Math.min(...d.rings.map((r) => r.radius));
   return d.tubeRatios.map((w) => w * base);
 }

@@ -9,8 +9,8 @@ import type { Ring, Vec3 } from '../src/model/types.js';
 export interface ViewStrut {
   onA: Vec3;
   onB: Vec3;
-  /** Normalised force in [0, 1] (largest strut = 1). */
-  force: number;
+  /** Normalised force in [0, 1] (largest strut = 1); null when not computed (drawn grey). */
+  force: number | null;
 }
 
 export interface ViewCallbacks {
@@ -22,12 +22,14 @@ export interface ViewCallbacks {
 
 const RING_COLORS = [0x2f6fbf, 0xd9822b, 0x3a9a5b, 0x9b4dca, 0xc2474a, 0x2aa1a8, 0x8c6d31, 0x5a5a9e];
 const BAD_COLOR = 0xe02424;
+const UNKNOWN_FORCE_COLOR = 0x707070;
 /** Facets of a tube: fewer around the tube than along the ring, enough to read the contacts. */
 const TUBULAR = 96;
 const RADIAL = 24;
 
-/** Force colour: pale yellow (weak) to dark red (strongest). */
-export function forceColor(f: number): THREE.Color {
+/** Force colour: pale yellow (weak) to dark red (strongest); grey when the force is unknown. */
+export function forceColor(f: number | null): THREE.Color {
+  if (f === null) return new THREE.Color(UNKNOWN_FORCE_COLOR);
   const t = Math.max(0, Math.min(1, f));
   return new THREE.Color().setHSL(0.14 - 0.14 * t, 0.9, 0.7 - 0.35 * t);
 }
@@ -96,6 +98,7 @@ export class View3d {
   show(rings: Ring[], tubes: number[], struts: ViewStrut[], fit: boolean): void {
     this.rings = rings.map((r) => ({ ...r, center: [...r.center] as Vec3, normal: [...r.normal] as Vec3 }));
     this.tubes = tubes.slice();
+    this.expose();
     this.rebuild();
     this.setStruts(struts);
     if (fit) this.fit();
@@ -104,12 +107,14 @@ export class View3d {
   /** Grow or shrink the tubes in place (progress of a solve). */
   setTubes(tubes: number[]): void {
     this.tubes = tubes.slice();
+    this.expose();
     this.rebuild();
   }
 
   /** Move one ring's drawing (the handle's own drags already moved it; edits from the list come here). */
   setPose(index: number, center: Vec3, normal: Vec3): void {
     this.rings[index] = { ...this.rings[index]!, center: [...center] as Vec3, normal: [...normal] as Vec3 };
+    this.expose();
     const obj = this.objects[index];
     if (obj) place(obj, center, normal);
     this.requestRender();
@@ -145,6 +150,12 @@ export class View3d {
   }
 
   // ---- helpers -----------------------------------------------------------------------------------
+
+  /** What is drawn, as data on the view's element (full precision: for tests and scripts driving the page). */
+  private expose(): void {
+    this.host.dataset['rings'] = JSON.stringify(this.rings.map((r) => ({ name: r.name, center: r.center, normal: r.normal, radius: r.radius })));
+    this.host.dataset['tubes'] = JSON.stringify(this.tubes);
+  }
 
   private rebuild(): void {
     for (const o of this.objects) dispose(o);

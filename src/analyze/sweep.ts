@@ -9,11 +9,13 @@
 // feasible as ε grows, so the best feasible tube found can only rise: when no start improves on it, it
 // is kept as the value at this ε (an honest lower bound on the curve, flagged 'stalled'). At the last ε
 // the aligned unconstrained optimum is itself feasible, so the curve ends at the unconstrained value.
-// Every point's departure is re-measured here and both ends are re-checked by verify.ts.
+// Every point's departure is re-measured here and both ends are re-checked by verify.ts. Every solve bounds and
+// every point measures the departure with one ring matching, the symmetric optimum's (nearest images): the
+// unconstrained optimum is usually too far from symmetric for nearest images to pair its own rings consistently.
 import { verifyConfiguration } from '../check/verify.js';
 import { alignRings, applyAlignment } from './align.js';
 import type { ResultRing, SolveResult, SweepPoint, Verification } from '../model/result.js';
-import { ringOrbits, symmetryDeparture, type RingOrbits } from '../model/symmetry.js';
+import { ringOrbits, symmetryDeparture } from '../model/symmetry.js';
 import type { Ring, SolveStatus, Symmetry } from '../model/types.js';
 import { runMultistart } from '../optimize/run/multistart.js';
 import type { InflateProblem } from '../optimize/run/problem.js';
@@ -168,7 +170,7 @@ export async function symmetryBreakingSweep(
   // Warm-started solves with the departure bound; only verified outcomes (nearly) within ε come back.
   async function solveAt(rings: Ring[], epsilon: number, starts: number): Promise<Candidate[]> {
     const problem: InflateProblem = {
-      rings, tubeRatios: ratios, linking: base.linking, symmetry: null, departure: { symmetry, epsilon },
+      rings, tubeRatios: ratios, linking: base.linking, symmetry: null, departure: { symmetry, epsilon, reference: symmetricRings },
     };
     const r = await runMultistart(problem, {
       starts, workers: Math.min(starts, options.workers), seed: seed++, tol: options.tol, perturbation: WARM_PERTURBATION,
@@ -177,8 +179,8 @@ export async function symmetryBreakingSweep(
     });
     if (!(r.status === 'optimal' || r.status === 'stalled') || !r.verification.ok) return [];
     const out = r.rings.map(toRing);
-    // Measured with the ring matching the solver used (nearest images of its start).
-    const d = departureOrNull(out, symmetry, rings) ?? symmetryDeparture(out, symmetry, orbits);
+    // Measured with the ring matching the solver bounded: the symmetric optimum's, for every start and ε.
+    const d = symmetryDeparture(out, symmetry, orbits);
     if (d > epsilon * (1 + DEPARTURE_SLACK_REL) + DEPARTURE_SLACK_ABS_REL * minRadius) {
       messages.push(`sweep: at ε = ${fmt(epsilon)} the solver returned departure ${fmt(d)} (layout units); that start was not used`);
       return [];
@@ -193,17 +195,6 @@ interface Candidate {
   status: SolveStatus;
   /** Measured departure from the symmetry (layout units). */
   departure: number;
-}
-
-/** Departure of `rings` with the ring matching found on `reference`; null when that has no consistent matching. */
-function departureOrNull(rings: Ring[], symmetry: Symmetry, reference: Ring[]): number | null {
-  let orbits: RingOrbits;
-  try {
-    orbits = ringOrbits(reference, symmetry);
-  } catch {
-    return null;
-  }
-  return symmetryDeparture(rings, symmetry, orbits);
 }
 
 /** Poses a fraction s of the way from a to b (centres linearly, normals linearly then normalised). */

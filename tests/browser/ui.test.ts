@@ -18,6 +18,9 @@ import { buildReportHtml } from '../../reports/html.js';
 import { loadPlotlySource, loadViewSource } from '../../reports/plotlySource.js';
 import { pathToFileURL } from 'node:url';
 import { hopfResult } from '../reportFixture.js';
+import { refMinima } from '../reference/bruteCircle.js';
+
+interface RefRing { center: number[]; normal: number[]; radius: number }
 
 const ARTIFACTS = resolve('test-artifacts');
 /** Relative agreement asked of the page's tube / core with 1/2: the solve's default tolerance is 1e-9. */
@@ -155,6 +158,58 @@ describe('thickring ui in chromium', () => {
 
     await page.close();
     expect(offsite).toEqual([]);
+    expect(problems).toEqual([]);
+  }, 280_000);
+
+  it('after Compare, the 3D view and the ring list show the chosen point of the sweep (default the best)', async () => {
+    const page = await context.newPage();
+    const problems: string[] = [];
+    // The page's worker pool warns about every solve attempt that failed (a thrown error or a dead worker).
+    page.on('console', (m) => { if (m.type() === 'error' || (m.type() === 'warning' && /^solve \d+:/.test(m.text()))) problems.push(`console: ${m.text()}`); });
+    page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
+    await page.goto(ui.url);
+    await page.waitForSelector('body[data-ready]', { state: 'attached', timeout: 60_000 });
+    await page.click('#compare');
+    const box = page.locator('#sweep-pick');
+    await box.waitFor({ state: 'visible', timeout: 200_000 });
+    await page.waitForFunction(() => !document.body.dataset['solving'], undefined, { timeout: 60_000 });
+    const points = JSON.parse((await box.getAttribute('data-points'))!) as { epsilon: number; tube: number }[];
+    expect(points.length).toBeGreaterThanOrEqual(2);
+    // Breaking the symmetry cannot thicken the tight Hopf link: every point of the curve is at tube = R/2 = 0.5
+    // (Cantarella, Kusner, Sullivan, Invent. Math. 150 (2002)).
+    for (const p of points) expect(Math.abs(p.tube - 0.5) / 0.5).toBeLessThan(HOPF_REL_TOL);
+    // The default is the best point: no point has a thicker tube.
+    const chosen = Number(await box.getAttribute('data-index'));
+    expect(Math.max(...points.map((p) => p.tube))).toBeLessThanOrEqual(points[chosen]!.tube);
+
+    // What the view draws realises the chosen point: brute-force least core distance (tests/reference) is
+    // twice its tube, the tubes drawn are its tube, and the ring list shows the same poses.
+    const shown = async (): Promise<{ index: number; tube: number }> => {
+      const index = Number(await box.getAttribute('data-index'));
+      const tube = points[index]!.tube;
+      const rings = JSON.parse((await page.getAttribute('#view', 'data-rings'))!) as RefRing[];
+      const tubes = JSON.parse((await page.getAttribute('#view', 'data-tubes'))!) as number[];
+      expect(rings).toHaveLength(2);
+      for (const t of tubes) expect(Math.abs(t - tube) / tube).toBeLessThan(1e-12);
+      const least = Math.min(...refMinima(rings[0]!, rings[1]!).map((m) => m.d));
+      expect(Math.abs(least - 2 * tube) / (2 * tube)).toBeLessThan(1e-7);
+      for (const [i, r] of rings.entries()) {
+        for (const [k, x] of r.center.entries()) {
+          const cell = page.locator(`#rings tr[data-ring="${i}"] input[data-field="center"][data-k="${k}"]`);
+          expect(Math.abs(Number(await cell.inputValue()) - x)).toBeLessThan(1e-6);
+        }
+      }
+      return { index, tube };
+    };
+    expect((await shown()).index).toBe(chosen);
+    // The slider walks the sweep: the other end is shown the same way.
+    await page.focus('#sweep-point');
+    await page.keyboard.press(chosen === 0 ? 'End' : 'Home');
+    await expect.poll(() => box.getAttribute('data-index')).toBe(String(chosen === 0 ? points.length - 1 : 0));
+    await shown();
+    expect(await page.textContent('#sweep-point-text')).toMatch(/^point \d+ of \d+: departure [\d.e+-]+ layout units, tube [\d.e+-]+ layout units/);
+    await page.screenshot({ path: join(ARTIFACTS, 'ui-compare.png') });
+    await page.close();
     expect(problems).toEqual([]);
   }, 280_000);
 

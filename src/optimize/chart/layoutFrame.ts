@@ -69,7 +69,10 @@ export function inflateProblemIn(f: LayoutFrame, p: InflateProblem): InflateProb
     symmetry: p.symmetry ? symmetryIn(f, p.symmetry) : null,
   };
   // The departure from symmetry is a length (centres, and normals weighted by R): it scales with the layout.
-  if (p.departure) out.departure = { symmetry: symmetryIn(f, p.departure.symmetry), epsilon: p.departure.epsilon / f.unit };
+  if (p.departure) {
+    const { symmetry, epsilon, reference } = p.departure;
+    out.departure = { symmetry: symmetryIn(f, symmetry), epsilon: epsilon / f.unit, ...(reference ? { reference: ringsIn(f, reference) } : {}) };
+  }
   return out;
 }
 

@@ -15,8 +15,12 @@ export interface InflateProblem {
   linking: number[][];
   /** Imposed symmetry: one pose per orbit is optimised, the others are its images. */
   symmetry: Symmetry | null;
-  /** Instead of imposing `symmetry`, bound the departure from it: symmetryDeparture(rings) <= epsilon. */
-  departure?: { symmetry: Symmetry; epsilon: number };
+  /**
+   * Instead of imposing `symmetry`, bound the departure from it: symmetryDeparture(rings) <= epsilon, with
+   * each ring compared to the images of the ring it is paired with by nearest images on `reference` (default:
+   * the start). A start far from symmetric may pair no consistent way; a sweep passes its symmetric optimum.
+   */
+  departure?: { symmetry: Symmetry; epsilon: number; reference?: Ring[] };
 }
 
 export interface SolveOptions {

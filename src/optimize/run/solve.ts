@@ -60,7 +60,8 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   }
   const orbits: RingOrbits = symmetry ? ringOrbits(problem.rings, symmetry) : trivialOrbits(n);
   let start: Ring[] = symmetry ? symmetrize(problem.rings, symmetry, orbits) : problem.rings.map(copyRing);
-  const dep: DepartureSpec | null = departure ? { orbits: ringOrbits(start, departure.symmetry), epsilon: departure.epsilon } : null;
+  const dep: DepartureSpec | null = departure
+    ? { orbits: ringOrbits(departure.reference ?? start, departure.symmetry), epsilon: departure.epsilon } : null;
   const pairs = pairPlan(orbits, n);
   const scale = Math.min(...problem.rings.map((r) => r.radius));
 
@@ -275,6 +276,9 @@ function validate(p: InflateProblem): void {
   }
   if (p.departure && !(p.departure.epsilon >= 0)) {
     throw new InputError(`departure: epsilon ${p.departure.epsilon} must be >= 0 (layout units)`);
+  }
+  if (p.departure?.reference && p.departure.reference.length !== n) {
+    throw new InputError(`departure.reference: ${p.departure.reference.length} rings for ${n}; give the reference poses of the same rings`);
   }
 }
 
