@@ -15,7 +15,7 @@ import { InputError } from '../src/model/errors.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { ringOrbits, symmetryDeparture } from '../src/model/symmetry.js';
 import type { Ring, Symmetry, Vec3 } from '../src/model/types.js';
-import { solveInflate } from '../src/optimize/solve.js';
+import { solveInflate } from '../src/optimize/run/solve.js';
 import { linkingMatrix } from '../src/topology/index.js';
 import { normalize, rotate } from '../src/model/vec.js';
 
