@@ -5,18 +5,22 @@
 // Mehrotra's predictor–corrector (Mehrotra, SIAM J. Optim. 2(4), 1992; Nocedal & Wright, Numerical
 // Optimization, 2nd ed., §16.6) from an infeasible start. Each iteration solves one reduced Newton system
 //
-//   [ P + Σ + δI    Cᵀ      ] [dx]   [r1]
-//   [ C            −S Y⁻¹  ] [dy] = [r2],      Σ = W_l S_l⁻¹ + W_u S_u⁻¹ (the bounds, eliminated),
+//   [ P + Σ + δI    Cᵀ          ] [dx]   [r1]
+//   [ C            −(S Y⁻¹ + ρ) ] [dy] = [r2],      Σ = W_l S_l⁻¹ + W_u S_u⁻¹ (the bounds, eliminated),
 //
-// which is quasi-definite whenever P + Σ + δI is positive definite, so it has an LDLᵀ factorisation with a
-// diagonal D in any symmetric order (Vanderbei, SIAM J. Optim. 5(1), 1995): the ordering and elimination
-// tree are computed once per QP (step/sparseLdl.ts) and each iteration refactors numerically, at a cost
-// linear in the rings for a chain or a necklace. P need not be convex (it is the Lagrangian Hessian of the
-// tube problem plus the trust-region term); the inertia of the factor tells (Sylvester's law): n positive
-// pivots and m negative ones mean P is positive definite on the null space of the nearly active rows, else
-// δ grows until they are — the inertia correction of Wächter & Biegler (Math. Program. 106, 2006, IPOPT).
+// through its normal matrix M = P + Σ + δI + Cᵀ(S Y⁻¹ + ρ)⁻¹C, whose pattern is that of P plus each row's
+// pairs of columns (the ring-contact graph again), by a sparse LDLᵀ (step/sparseLdl.ts): the minimum-degree
+// ordering and elimination tree are computed once per QP and each iteration refactors numerically, at a cost
+// linear in the rings for a chain or a necklace. The small dual regularisation ρ bounds M's entries, so
+// rounding cannot flip a pivot's sign, and three passes of iterative refinement on the unregularised system
+// recover the accuracy. (The quasi-definite matrix itself, factorised in a fill-reducing order, was tried and
+// dropped: eliminating a nearly active row first, with S/Y ~ 1e-20, flipped pivot signs by rounding.)
+// P need not be convex (it is the Lagrangian Hessian of the tube problem plus the trust-region term); by the
+// Schur complement and Sylvester's law the reduced system has the inertia of a convex QP exactly when M is
+// positive definite, i.e. when its LDLᵀ has n positive pivots; else δ grows until it has — the inertia
+// correction of Wächter & Biegler (Math. Program. 106, 2006, IPOPT).
 // A QP that does not converge within its iteration or time budget is a failed step, never a hang.
-import { analyseLdl, factorLdl, SymTriplets, type LdlFactor, type SymCsc } from './sparseLdl.js';
+import { analyseLdl, factorLdl, SymTriplets, type LdlFactor } from './sparseLdl.js';
 
 export interface SparseQp {
   /** Number of variables. */
@@ -75,9 +79,9 @@ const GAP_FLOOR = 1e-15;
 const DUAL_REG_REL = 1e-9;
 const REFINE_STEPS = 3;
 /**
- * Pivots counted as zero, relative to the largest diagonal entry: the barrier terms spread the diagonal
- * over some 30 orders of magnitude near the end, and a quasi-definite matrix has no zero pivot, so only a
- * pivot lost to rounding altogether counts.
+ * Pivots counted as zero, relative to the largest diagonal entry: the barrier terms spread M's diagonal over
+ * many orders of magnitude near the end, and a positive definite M has no zero pivot, so only a pivot lost to
+ * rounding altogether counts.
  */
 const PIVOT_ZERO_REL = 1e-40;
 
@@ -366,4 +370,3 @@ function mulP(qp: SparseQp, x: ArrayLike<number>, out: Float64Array): void {
   }
 }
 
-export type { SymCsc };

@@ -1,8 +1,11 @@
 // The outer trust-region loop on the max–min problem, shared by the ring solver (solve.ts) and the weave
 // solver (periodicSolve.ts), which hand it their chart through the hooks of OuterLoop.
 //
-// At the current arrangement the constraints near touching are linearised in the chart and the proximal QP
-// (localStep.ts) proposes a step, judged on the exact kernel: the true tube of the new arrangement against
+// At the current arrangement the constraints near touching are linearised in the chart and the SQP step
+// (sqpStep.ts: the Lagrangian Hessian from the exact strut curvatures, multipliers carried from the last
+// step, a sparse interior-point QP; with a second-order correction when the model misjudged the step)
+// proposes a step — or, as the bench baseline, the first-order proximal QP (localStep.ts) — judged on the
+// exact kernel: the true tube of the new arrangement against
 // the predicted gain, with the caller's admissibility (linking, departure bound) re-checked; the radius
 // shrinks on rejection and grows on success, so the tube never decreases (settings in trustRegion.ts). Once
 // the predicted gain is small, the caller's Newton polish finishes, and its assessment (first-order

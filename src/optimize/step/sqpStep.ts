@@ -114,7 +114,7 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
   };
 }
 
-/** Angular distance (radians) within which a struct of the previous step is the same strut now. */
+/** Angular distance (radians) within which a strut of the previous step is the same strut now. */
 const SAME_STRUT_ANGLE = 0.3;
 
 /**
