@@ -2,23 +2,14 @@
 // LP/QP solver (the `highs` package, an independent reference library), on seeded random sparse convex QPs
 // of the step's shape; and its nonconvex behaviour against closed forms.
 import { describe, expect, it } from 'vitest';
+import { seededRandom } from '../src/model/random.js';
 import type { Highs } from 'highs';
 import { solveQpInterior, type SparseQp } from '../src/optimize/step/interiorQp.js';
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A random QP like a step's: a banded PD Hessian, sparse rows through x = 0 with h >= 0, a box. */
 function randomQp(seed: number, n: number, m: number): SparseQp {
-  const r = rng(seed);
+  const r = seededRandom(seed);
   const pI: number[] = [], pJ: number[] = [], pV: number[] = [];
   for (let i = 0; i < n; i++) {
     pI.push(i); pJ.push(i); pV.push(1 + 2 * r());

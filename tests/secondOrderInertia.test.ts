@@ -3,25 +3,16 @@
 // reference library: the largest eigenvalue of Nᵀ W N, N an orthonormal basis of the null space of the
 // binding constraint gradients (SVD). On synthetic models with a known W and known gradient rows.
 import { describe, expect, it } from 'vitest';
+import { seededRandom } from '../src/model/random.js';
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
 import { curvatureBoundByInertia } from '../src/optimize/certify/secondOrder.js';
 import type { KktModel } from '../src/optimize/certify/kktNewton.js';
 import { newConstraint, type Constraint } from '../src/optimize/constraints/constraints.js';
 
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** W = -B Bᵀ·s + shift·(a unit vector u in null(A)) uuᵀ, A: m sparse unit rows; n variables. */
 function syntheticCase(seed: number, n: number, m: number, positive: number, blocked = 0) {
-  const r = rng(seed);
+  const r = seededRandom(seed);
   const rows: Float64Array[] = [];
   for (let k = 0; k < m; k++) {
     const g = new Float64Array(n);

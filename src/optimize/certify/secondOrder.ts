@@ -25,6 +25,8 @@ const PENALTY_EPS = 1e-8;
  * is about 1e-8, so no shift below 1e-7 is trusted; all lie below CURVATURE_TOL (certificate.ts).
  */
 const INERTIA_SHIFTS: readonly number[] = [1e-7, 5e-7];
+/** Pivots counted as zero (relative): M is positive definite when the test passes, so only a pivot lost altogether. */
+const PIVOT_ZERO_REL = 1e-300;
 /** First-order change (dimensionless) of an idle contact still counted as not closing it. */
 const OPENING_TOL = 1e-9;
 
@@ -51,10 +53,8 @@ export function criticalCurvature<C extends Constraint, P>(
   }
   const J = kktJacobianOf(model, active, new Float64Array(n), lambda, L);
   if (J === null) return null;
-  let lmax = 0;
-  for (const l of lambda) lmax = Math.max(lmax, l);
   const all = [...Array(m).keys()];
-  const binding = all.filter((k) => lambda[k]! > POSITIVE_FORCE_REL * lmax);
+  const binding = bindingRows(lambda);
   // Keeping every active contact stays inside the critical cone: positive curvature there is a saddle.
   const strict = curvatureOn(J, n, all);
   if (strict.maxCurvature > 0 || binding.length === all.length) return strict;
@@ -89,13 +89,10 @@ export function curvatureBoundByInertia<C extends Constraint, P>(
   if (!model.hessianEntries) return null;
   const n = model.nFree;
   const posed = model.posedAt(new Float64Array(n));
-  let lmax = 0;
-  for (const l of lambda) lmax = Math.max(lmax, l);
   const trip = new SymTriplets(n);
   const ok = model.hessianEntries(active, posed, lambda, (i, j, v) => trip.add(i, j, -L * v));
   if (!ok) return null;
-  for (let k = 0; k < active.length; k++) {
-    if (!(lambda[k]! > POSITIVE_FORCE_REL * lmax)) continue;
+  for (const k of bindingRows(lambda)) {
     const con = active[k]!;
     if (!Number.isFinite(model.evaluate(con, posed, false))) return null;
     const g = Float64Array.from(con.grad);
@@ -112,10 +109,21 @@ export function curvatureBoundByInertia<C extends Constraint, P>(
   for (const tau of INERTIA_SHIFTS) {
     matrix.values.set(base);
     for (let i = 0; i < n; i++) matrix.values[diag[i]!] = matrix.values[diag[i]!]! + tau;
-    const f = factorLdl(pattern, matrix, 1e-300);
+    const f = factorLdl(pattern, matrix, PIVOT_ZERO_REL);
     if (f.zero === 0 && f.positive === n) return tau;
   }
   return null;
+}
+
+/** Indices of the constraints whose force restricts the critical subspace. */
+function bindingRows(lambda: Float64Array): number[] {
+  let lmax = 0;
+  for (const l of lambda) lmax = Math.max(lmax, l);
+  const out: number[] = [];
+  lambda.forEach((l, k) => {
+    if (l > POSITIVE_FORCE_REL * lmax) out.push(k);
+  });
+  return out;
 }
 
 /** Largest eigenvalue of W on {dz : ∇g_k·dz = 0 for k in rows} (rows of the KKT Jacobian). */
