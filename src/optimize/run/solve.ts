@@ -19,7 +19,8 @@ import { inflateOutcomeOut, inflateProblemIn, layoutFrame, optionsIn } from '../
 import { certify, CURVATURE_TOL } from '../certify/certificate.js';
 import type { Constraint, DepartureSpec } from '../constraints/constraints.js';
 import { readySolvers, type InnerAlgorithm } from '../step/localStep.js';
-import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from '../step/outerLoop.js';
+import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished, type StepForces } from '../step/outerLoop.js';
+import { carryMultipliers } from '../step/sqpStep.js';
 import { perturbRings } from '../chart/perturb.js';
 import { polish, ringKktModel } from '../certify/polish.js';
 import { criticalCurvature } from '../certify/secondOrder.js';
@@ -91,7 +92,7 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
     chart: (s) => ringLoopChart(s, ctx),
     admissible: (s) => withinDeparture(s.rings, dep) && sameLinking(s.rings, problem.linking),
     polish: (s) => tryPolish(s, ctx),
-    assess: (s, p) => assess(s, ctx, p),
+    assess: (s, p, f) => assess(s, ctx, p, f ?? null),
   });
   const fin = run.fin;
   return {
@@ -167,7 +168,7 @@ function tryPolish(state: RingState, ctx: Context): Polished<RingState> | null {
 }
 
 /** Certificate (first and second order) at the current poses. */
-function assess(state: RingState, ctx: Context, polished: Polished<RingState> | null): Final {
+function assess(state: RingState, ctx: Context, polished: Polished<RingState> | null, forces: StepForces | null): Final {
   const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
   const posed = posedAt(chart, new Float64Array(chart.nFree));
   const t = state.t;
@@ -179,7 +180,8 @@ function assess(state: RingState, ctx: Context, polished: Polished<RingState> | 
   for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
     const active = activeSet(all, t, tol * t);
     if (active.length === 0) continue;
-    const first = certify({ ...base, active, activeTol: tol });
+    const hint = forces ? carryMultipliers(forces.cons, forces.lambda, active) : null;
+    const first = certify({ ...base, active, activeTol: tol, hint });
     // Near a saddle the balance is only approximate; the curvature still shows the way out.
     if (!first.certificate.certified && !(first.certificate.balanceResidual <= ESCAPE_BALANCE_TOL)) {
       out ??= { state, cert: first, escape: null, binding: [], polishMessage: polished?.message ?? null };
@@ -187,7 +189,7 @@ function assess(state: RingState, ctx: Context, polished: Polished<RingState> | 
     }
     // Samples bound a contact arc from above, so curvature computed with them can be spurious: skip it there.
     const curv = active.some((k) => k.kind === 'sample') ? null : criticalCurvature(ringKktModel(chart, ctx.dep), active, first.lambda, ctx.scale);
-    const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null });
+    const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null, hint: first.lambda });
     const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
     const binding = bindingContacts(active, first.lambda);
     const candidate: Final = { state, cert, escape, binding, polishMessage: polished?.message ?? null };

@@ -78,6 +78,8 @@ const GAP_FLOOR = 1e-15;
 /** Dual regularisation (relative) and the iterative-refinement passes that undo it. */
 const DUAL_REG_REL = 1e-9;
 const REFINE_STEPS = 3;
+/** Residual (relative to the right-hand side) at which the refinement stops early. */
+const REFINE_ENOUGH = 1e-14;
 /**
  * Pivots counted as zero, relative to the largest diagonal entry: the barrier terms spread M's diagonal over
  * many orders of magnitude near the end, and a positive definite M has no zero pivot, so only a pivot lost to
@@ -114,8 +116,11 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
   const pairSlot = slot.subarray(firstPair, firstPair + pairA.length);
   const rowScale = new Float64Array(m);
   const pattern = analyseLdl(K);
+  // P with its duplicates summed (a Lagrangian Hessian arrives as one block per strut, many on the same
+  // pair of rings): the products by P in the residuals and the refinement run over the distinct entries.
+  const P = compactP(K, slot, qp.pV.length, base);
   let pDiagMax = 1;
-  for (let k = 0; k < qp.pV.length; k++) if (qp.pI[k] === qp.pJ[k]) pDiagMax = Math.max(pDiagMax, Math.abs(qp.pV[k]!));
+  for (let k = 0; k < P.v.length; k++) if (P.i[k] === P.j[k]) pDiagMax = Math.max(pDiagMax, Math.abs(P.v[k]!));
 
   const { lower: l, upper: u, h, q } = qp;
   // Start: x at the bound-clipped origin, slacks and multipliers at a size set by the data.
@@ -173,7 +178,7 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
       break;
     }
     // Residuals.
-    mulP(qp, x, px);
+    mulP(P, x, px);
     mulCt(qp, y, ctY);
     mulC(qp, x, cx);
     let gap = 0;
@@ -272,11 +277,22 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
         for (let r = 0; r < m; r++) out.dy[r] = out.dy[r]! + rowScale[r]! * (cx[r]! - res2[r]!);
         if (pass === REFINE_STEPS) break;
         // Residual of [A Cᵀ; C -E] (dx, dy) = (r1, r2), A = P + Σ + δI, E = S Y⁻¹.
-        mulP(qp, out.dx, res1);
+        mulP(P, out.dx, res1);
         mulCt(qp, out.dy, ctY2);
-        for (let i = 0; i < n; i++) res1[i] = rhs1[i]! - res1[i]! - aDiag[i]! * out.dx[i]! - ctY2[i]!;
+        let r1 = 0, r2 = 0, b1 = 0, b2 = 0;
+        for (let i = 0; i < n; i++) {
+          res1[i] = rhs1[i]! - res1[i]! - aDiag[i]! * out.dx[i]! - ctY2[i]!;
+          r1 = Math.max(r1, Math.abs(res1[i]!));
+          b1 = Math.max(b1, Math.abs(rhs1[i]!));
+        }
         mulC(qp, out.dx, cx);
-        for (let r = 0; r < m; r++) res2[r] = rhs2[r]! - cx[r]! + (s[r]! / y[r]!) * out.dy[r]!;
+        for (let r = 0; r < m; r++) {
+          res2[r] = rhs2[r]! - cx[r]! + (s[r]! / y[r]!) * out.dy[r]!;
+          r2 = Math.max(r2, Math.abs(res2[r]!));
+          b2 = Math.max(b2, Math.abs(rhs2[r]!));
+        }
+        // Solved to rounding already: a further pass would change nothing.
+        if (r1 <= REFINE_ENOUGH * b1 && r2 <= REFINE_ENOUGH * b2) break;
       }
       // ds = -rp - C dx;  dsl = dx + rl;  dwl = -(rcl + wl dsl)/sl;  dsu = -dx + ru;  dwu = -(rcu + wu dsu)/su.
       mulC(qp, out.dx, cx);
@@ -361,10 +377,36 @@ function mulCt(qp: SparseQp, y: ArrayLike<number>, out: Float64Array): void {
   }
 }
 
-function mulP(qp: SparseQp, x: ArrayLike<number>, out: Float64Array): void {
+interface CompactSym {
+  i: Int32Array;
+  j: Int32Array;
+  v: Float64Array;
+}
+
+/** The distinct upper-triangle entries of P: the slots of K its first `count` triplets landed in. */
+function compactP(K: { n: number; colPtr: Int32Array; rowIdx: Int32Array }, slot: Int32Array, count: number, values: Float64Array): CompactSym {
+  const used = new Uint8Array(values.length);
+  for (let k = 0; k < count; k++) used[slot[k]!] = 1;
+  let nnz = 0;
+  for (let q = 0; q < used.length; q++) nnz += used[q]!;
+  const out: CompactSym = { i: new Int32Array(nnz), j: new Int32Array(nnz), v: new Float64Array(nnz) };
+  let e = 0;
+  for (let c = 0; c < K.n; c++) {
+    for (let q = K.colPtr[c]!; q < K.colPtr[c + 1]!; q++) {
+      if (!used[q]) continue;
+      out.i[e] = K.rowIdx[q]!;
+      out.j[e] = c;
+      out.v[e] = values[q]!;
+      e++;
+    }
+  }
+  return out;
+}
+
+function mulP(P: CompactSym, x: ArrayLike<number>, out: Float64Array): void {
   out.fill(0);
-  for (let k = 0; k < qp.pV.length; k++) {
-    const i = qp.pI[k]!, j = qp.pJ[k]!, v = qp.pV[k]!;
+  for (let k = 0; k < P.v.length; k++) {
+    const i = P.i[k]!, j = P.j[k]!, v = P.v[k]!;
     out[i] = out[i]! + v * x[j]!;
     if (i !== j) out[j] = out[j]! + v * x[i]!;
   }

@@ -16,13 +16,20 @@
 import type { CertifyOutput } from '../certify/certificate.js';
 import type { Constraint } from '../constraints/constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
-import { carryMultipliers, sqpStep, type SqpStepInput } from './sqpStep.js';
+import { carryMultipliers, QP_TOL, sqpStep, type SqpStepInput } from './sqpStep.js';
 import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
 import type { SolveOutcome } from '../run/problem.js';
 import {
   ACCEPT_RATIO, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO, MARGIN_BOXES,
   MAX_STEP_FAILURES, POLISH_TRIGGER_START,
 } from './trustRegion.js';
+
+/**
+ * QP accuracy relative to the polish trigger (the relative gain the loop is still resolving), capped: while
+ * the gains are large an accurate QP buys nothing, and the interior-point iterations grow with the digits.
+ */
+const QP_TOL_PER_TRIGGER = 1e-4;
+const QP_TOL_MAX = 1e-9;
 
 /** The SQP step stops for lack of gain only below this fraction of the final tolerance. */
 const SQP_FINAL_GAIN_REL = 1e-3;
@@ -76,10 +83,17 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
   /** Beyond a positive tube: the linking and any departure bound hold. */
   admissible(state: S): boolean;
   polish(state: S): Polished<S> | null;
-  assess(state: S, polished: Polished<S> | null): A;
+  /** `forces`: the last SQP step's constraints and multipliers, a candidate certificate to check first. */
+  assess(state: S, polished: Polished<S> | null, forces?: StepForces | null): A;
 }
 
 export type StepMethod = 'sqp' | 'proximal';
+
+/** The constraints of an SQP step and their multipliers (the QP's row duals). */
+export interface StepForces {
+  cons: Constraint[];
+  lambda: Float64Array;
+}
 
 export interface LoopRun<A> {
   /** The reported point (the best polished one unless the loop ended higher without one). */
@@ -107,7 +121,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   let failures = 0;
   let stopReason = 'iteration limit';
   /** The last SQP step's constraints and multipliers, whose curvature the next step's model uses. */
-  let carried: { cons: Constraint[]; lambda: Float64Array } | null = null;
+  let carried: StepForces | null = null;
   const record = (): void => {
     history.push(state.t);
     loop.onIteration?.(iterations, state.t);
@@ -134,7 +148,8 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     if (loop.stepMethod === 'sqp') {
       const lambda = carried ? carryMultipliers(carried.cons, carried.lambda, cons) : new Float64Array(cons.length);
       const W = lagrangianEntries(chart, cons, lambda);
-      sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline };
+      const accuracy = Math.max(QP_TOL, Math.min(QP_TOL_MAX, QP_TOL_PER_TRIGGER * trigger));
+      sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline, accuracy };
       const s = sqpStep(sqpInput);
       if (s.ok) carried = { cons, lambda: s.lambda };
       step = s;
@@ -165,7 +180,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       if (p) {
         state = p.state;
         record();
-        const fin = loop.assess(state, p);
+        const fin = loop.assess(state, p, carried);
         if (best === null || fin.state.t >= best.state.t) best = fin;
         if (fin.escape === null || escapes >= loop.maxEscapes) {
           stopReason = 'polished';
@@ -181,9 +196,19 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
         restart(off);
         continue;
       }
-      // No polish: perhaps a saddle the first-order model cannot leave (its gain there is second order).
-      if (escapes < loop.maxEscapes) {
-        const here = loop.assess(state, null);
+      // Tighten the trigger and keep stepping while the model still promises a gain. The SQP step goes on to
+      // a gain well below the tolerance: at a degenerate optimum the gain per step is about the square of the
+      // distance left, so a gain of tol·t can still leave a gap many times tol (necklaces: 8e-9 left).
+      const floor = loop.stepMethod === 'sqp' ? SQP_FINAL_GAIN_REL * loop.finalTol : loop.finalTol;
+      const stalled = (): boolean => !(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale;
+      // The SQP model carries the Lagrangian's curvature, so while it still promises a gain it is climbing,
+      // not stuck at a saddle: the balance of an unconverged point is only approximate, and the curvature
+      // the assessment reads there is no evidence of a way off. The first-order step cannot leave a saddle
+      // (its gain there is second order), so it looks for one at once.
+      if (loop.stepMethod === 'sqp') while (stalled() && trigger > floor) trigger = Math.max(trigger * 0.01, floor);
+      if (stalled() && escapes < loop.maxEscapes) {
+        // No polish: perhaps a saddle the model cannot leave.
+        const here = loop.assess(state, null, carried);
         const off = here.escape ? stepOff(here) : null;
         if (off) {
           escapes++;
@@ -192,12 +217,8 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
           continue;
         }
       }
-      // Tighten the trigger and keep stepping while the model still promises a gain. The SQP step goes on to
-      // a gain well below the tolerance: at a degenerate optimum the gain per step is about the square of the
-      // distance left, so a gain of tol·t can still leave a gap many times tol (necklaces: 8e-9 left).
-      const floor = loop.stepMethod === 'sqp' ? SQP_FINAL_GAIN_REL * loop.finalTol : loop.finalTol;
-      while (!(promised > trigger * state.t) && trigger > floor) trigger = Math.max(trigger * 0.01, floor);
-      if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+      while (stalled() && trigger > floor) trigger = Math.max(trigger * 0.01, floor);
+      if (stalled()) {
         stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
         break;
       }
@@ -228,7 +249,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   }
 
   let fin = best;
-  if (fin === null || state.t > fin.state.t * (1 + loop.finalTol)) fin = loop.assess(state, null);
+  if (fin === null || state.t > fin.state.t * (1 + loop.finalTol)) fin = loop.assess(state, null, carried);
   const status = fin.cert.certificate.certified
     ? 'optimal'
     : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
@@ -290,4 +311,6 @@ function secondOrderCorrection<C extends Constraint, P>(
   const s = sqpStep({ ...input, shift });
   return s.ok ? s.z : null;
 }
+
+
 

@@ -27,6 +27,8 @@ export interface SqpStepInput {
   wJ: number[];
   wV: number[];
   deadline?: number | undefined;
+  /** Relative accuracy of the QP (default QP_TOL): the outer loop asks for less while the gains are large. */
+  accuracy?: number;
   /** Added to each row's slack h_k (a second-order correction), or none. */
   shift?: Float64Array;
 }
@@ -49,7 +51,7 @@ export interface SqpStepResult {
 }
 
 /** QP accuracy: far below the outer loop's final tolerance, so the step's own error never stops it. */
-const QP_TOL = 1e-13;
+export const QP_TOL = 1e-13;
 /** Interior-point iterations at most per step. */
 const QP_MAX_ITERATIONS = 100;
 
@@ -98,7 +100,7 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
   upper[nFree] = Math.max(box * 1e-12, tMax - t);
   const sol = solveQpInterior(
     { n, pI, pJ, pV, q, rowPtr, colIdx: Int32Array.from(colIdx), rowVal: Float64Array.from(rowVal), h, lower, upper },
-    { tol: QP_TOL, maxIterations: QP_MAX_ITERATIONS, ...(input.deadline !== undefined ? { deadline: input.deadline } : {}) },
+    { tol: input.accuracy ?? QP_TOL, maxIterations: QP_MAX_ITERATIONS, ...(input.deadline !== undefined ? { deadline: input.deadline } : {}) },
   );
   const z = sol.x.subarray(0, nFree).slice();
   let curvature = 0;
