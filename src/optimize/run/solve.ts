@@ -2,14 +2,16 @@
 //
 // The outer trust-region loop (outerLoop.ts, shared with the weave solver periodicSolve.ts) runs on the
 // ring chart: at the current poses the kernel finds every strut of every pair; struts and sampled
-// near-contacts are linearised in a gauge-free chart (chart.ts, the symmetry imposed) and a proximal QP
-// (localStep.ts: nlopt-js SLSQP, HiGHS as companion) proposes a step, judged on the exact kernel with the
-// linking matrix (and any departure bound) re-checked. Once the predicted gain is small, Newton on the KKT
-// system of the active set (polish.ts) finishes to ~1e-13, accepted only if the kernel agrees.
-// Non-negative strut forces (certificate.ts) certify a Kuhn–Tucker point, and the curvature of the
-// Lagrangian along the contacts (secondOrder.ts) tells a maximum from a saddle: a symmetric arrangement is
-// often a saddle among all arrangements, and the loop steps off it along the ascent direction
-// (saddleEscape.ts, at most MAX_ESCAPES times unless options.maxEscapes says otherwise) and climbs on.
+// near-contacts are linearised in a gauge-free chart (chart.ts, the symmetry imposed) and the SQP step
+// (sqpStep.ts: exact Lagrangian Hessian, sparse interior-point QP; or, as the bench baseline, the
+// first-order proximal QP of localStep.ts) proposes a step, judged on the exact kernel with the linking
+// matrix (and any departure bound) re-checked. Once the predicted gain is small, Newton on the KKT system
+// of the active set (polish.ts, up to DENSE_POLISH_MAX_FREE variables) finishes to ~1e-13, accepted only if
+// the kernel agrees. Non-negative strut forces (certificate.ts: the step's own multipliers checked first,
+// else NNLS) certify a Kuhn–Tucker point, and the curvature of the Lagrangian along the contacts
+// (secondOrder.ts) tells a maximum from a saddle: a symmetric arrangement is often a saddle among all
+// arrangements, and the loop steps off it along the ascent direction (saddleEscape.ts, at most MAX_ESCAPES
+// times unless options.maxEscapes says otherwise) and climbs on.
 import { InputError } from '../../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../../model/symmetry.js';
 import type { Ring, Symmetry } from '../../model/types.js';
