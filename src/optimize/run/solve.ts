@@ -22,6 +22,7 @@ import { readySolvers, type InnerAlgorithm } from '../step/localStep.js';
 import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from '../step/outerLoop.js';
 import { perturbRings } from '../chart/perturb.js';
 import { polish, ringKktModel } from '../certify/polish.js';
+import { packingBound } from '../certify/bound.js';
 import { criticalCurvature } from '../certify/secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
 import { linkingHolds, maxViolation, pairPlan, radiusLimit, scanPairs, trueTube, type PairPlan, type PairScan } from '../constraints/scan.js';
@@ -86,6 +87,8 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
     scale, tMax: radiusLimit(radii(start), w), finalTol: ctx.finalTol, algorithm, stepMethod: options.step ?? 'sqp',
     maxIterations: options.maxIterations, maxEscapes: options.maxEscapes ?? MAX_ESCAPES, onIteration: options.onIteration,
     deadline: options.deadline,
+    // The packing bound holds for every arrangement with this linking: a tube that reaches it is a global maximum.
+    bound: packingBound(start, w, problem.linking)?.tube,
     // Under a departure bound ε a step of s moves the departure by at most s: try steps that fit first.
     escapeSizes: dep ? [0.25 * dep.epsilon / scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL,
     chart: (s) => ringLoopChart(s, ctx),

@@ -18,6 +18,7 @@ import type { Constraint } from '../constraints/constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
 import { carryMultipliers, sqpStep, type SqpStepInput } from './sqpStep.js';
 import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
+import { BOUND_METHOD, boundAttained, boundCertificate } from '../certify/bound.js';
 import type { SolveOutcome } from '../run/problem.js';
 import {
   ACCEPT_RATIO, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO, MARGIN_BOXES,
@@ -72,6 +73,11 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
   onIteration?: ((iteration: number, tube: number) => void) | undefined;
   /** Date.now() milliseconds at which to stop (SolveOptions.deadline). */
   deadline?: number | undefined;
+  /**
+   * A proven upper bound on the tube (layout units; the packing bound), or none. A tube equal to it to
+   * finalTol ends the loop and is certified by it (certify/bound.ts boundCertificate).
+   */
+  bound?: number | undefined;
   chart(state: S): LoopChart<S, C, P>;
   /** Beyond a positive tube: the linking and any departure bound hold. */
   admissible(state: S): boolean;
@@ -124,6 +130,19 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   while (iterations < loop.maxIterations) {
     if (loop.deadline !== undefined && Date.now() >= loop.deadline) {
       stopReason = 'time limit';
+      break;
+    }
+    // At the bound nothing can gain: polish once (for the Kuhn–Tucker figures) and stop. A maximiser there is
+    // often degenerate (a family of arrangements), where saddle escapes and more steps only spend time.
+    if (loop.bound !== undefined && boundAttained(state.t, loop.bound, loop.finalTol)) {
+      const p = loop.polish(state);
+      if (p) {
+        state = p.state;
+        record();
+      }
+      const fin = loop.assess(state, p);
+      if (best === null || fin.state.t >= best.state.t) best = fin;
+      stopReason = 'packing bound reached';
       break;
     }
     const chart = loop.chart(state);
@@ -229,11 +248,14 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
 
   let fin = best;
   if (fin === null || state.t > fin.state.t * (1 + loop.finalTol)) fin = loop.assess(state, null);
+  if (loop.bound !== undefined && !fin.cert.certificate.certified && boundAttained(fin.state.t, loop.bound, loop.finalTol)) {
+    fin = { ...fin, cert: { ...fin.cert, certificate: boundCertificate(fin.cert.certificate, fin.state.t, loop.bound) } };
+  }
   const status = fin.cert.certificate.certified
     ? 'optimal'
     : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
   const message =
-    `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
+    `${status !== 'optimal' ? status : fin.cert.certificate.method === BOUND_METHOD ? 'packing bound attained' : 'certified Kuhn-Tucker point'} after ${iterations} outer iterations` +
     ` (${stopReason}${fin.polishMessage ? `: ${fin.polishMessage}` : ''}${escapes > 0 ? `; left ${escapes} saddle(s)` : ''}); ` +
     `tube ${fin.state.t} (layout units)`;
   return { fin, status, message, iterations, history, escapes, stopReason };
