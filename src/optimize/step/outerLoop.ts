@@ -28,6 +28,12 @@ import {
 /** The SQP step stops for lack of gain only below this fraction of the final tolerance. */
 const SQP_FINAL_GAIN_REL = 1e-3;
 
+/** Creep test (creepingNearBound): gap to the bound (relative) below which it applies, window in iterations. */
+const CREEP_GAP_REL = 1e-3;
+const CREEP_WINDOW = 10;
+/** Gaps within this many final tolerances of the bound are left to the polish (necklaces end ~8 tolerances short). */
+const CREEP_MIN_GAP_TOLS = 1e3;
+
 /** Forces below this fraction of the largest do not count as binding (the escape may open those contacts). */
 const BINDING_FORCE_REL = 1e-9;
 
@@ -244,6 +250,10 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       delta *= 0.25;
     }
     record();
+    if (loop.bound !== undefined && creepingNearBound(history, loop.bound, loop.finalTol)) {
+      stopReason = CREEP_STOP;
+      break;
+    }
   }
 
   let fin = best;
@@ -259,6 +269,24 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     ` (${stopReason}${fin.polishMessage ? `: ${fin.polishMessage}` : ''}${escapes > 0 ? `; left ${escapes} saddle(s)` : ''}); ` +
     `tube ${fin.state.t} (layout units)`;
   return { fin, status, message, iterations, history, escapes, stopReason };
+}
+
+/** Why the loop stops when it creeps near the bound (the caller may restart from a perturbation). */
+export const CREEP_STOP = 'creeping near the packing bound';
+
+/**
+ * The tube is within CREEP_GAP_REL of the bound, the gap is still well above the tolerance, and the last
+ * CREEP_WINDOW iterations gained less than the gap that remains: at that rate more than CREEP_WINDOW further
+ * iterations would be needed, which a superlinear method near a regular maximum never does. Seen where the
+ * maximiser is degenerate (the free torus:3 reaches R/3 on a family of arrangements whose corners touch along
+ * a continuum; the ascent creeps into such a corner: docs/free-torus3.md).
+ */
+function creepingNearBound(history: readonly number[], bound: number, tol: number): boolean {
+  const n = history.length;
+  if (n <= CREEP_WINDOW) return false;
+  const t = history[n - 1]!, gap = bound - t;
+  if (!(gap < CREEP_GAP_REL * bound) || !(gap > CREEP_MIN_GAP_TOLS * tol * bound)) return false;
+  return t - history[n - 1 - CREEP_WINDOW]! < gap;
 }
 
 /** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */
