@@ -99,7 +99,12 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   let run = await runOuterLoop(state, loopOptions);
   // Creeping near the packing bound (a degenerate maximiser): climb again from perturbations of the best
   // arrangement, within the same iteration budget; seeded from the start's seed, so any worker gets the same.
-  if (dep === null) run = await restartNearBound(run, ctx, options, (s, maxIterations) => runOuterLoop(s, { ...loopOptions, maxIterations }));
+  if (dep === null) {
+    const report = options.onIteration;
+    run = await restartNearBound(run, ctx, options, (s, maxIterations, done) => runOuterLoop(s, {
+      ...loopOptions, maxIterations, onIteration: report && ((i: number, t: number) => report(done + i, t)),
+    }));
+  }
   const fin = run.fin;
   return {
     status: run.status, tube: fin.state.t, rings: withTubes(fin.state.rings, fin.state.t, w), iterations: run.iterations,
@@ -118,14 +123,15 @@ const RESTART_PERTURBATION = 0.05;
 type Run = Awaited<ReturnType<typeof runOuterLoop<RingState, Constraint, Posed, Final>>>;
 
 /**
- * After a run that crept near the packing bound (outerLoop.ts CREEP_STOP), perturb its arrangement and climb
- * again, up to MAX_RESTARTS times while iterations remain; keep a certified run, else the thickest. Near a
+ * After a run that crept near the packing bound (outerLoop.ts CREEP_STOP), perturb the best arrangement and
+ * climb again, up to MAX_RESTARTS times while iterations remain and each climb creeps again; keep the thickest
+ * run (a certified one among equal tubes). Near a
  * degenerate maximiser the ascent is drawn into corners where contacts form a continuum; a perturbation of
  * 5 % of the radius lands in the basin of a regular point of the maximising family often enough (5 of 6
  * restarts from the crept free torus:3, docs/free-torus3.md).
  */
 async function restartNearBound(
-  first: Run, ctx: Context, options: SolveOptions, climb: (s: RingState, maxIterations: number) => Promise<Run>,
+  first: Run, ctx: Context, options: SolveOptions, climb: (s: RingState, maxIterations: number, done: number) => Promise<Run>,
 ): Promise<Run> {
   let best = first;
   let iterations = first.iterations;
@@ -143,16 +149,20 @@ async function restartNearBound(
     }
     if (chosen === null) break;
     const scans = scanPairs(posedOf(chosen, ctx.orbits), ctx.pairs, ctx.w);
-    last = await climb({ rings: chosen, scans, t: trueTube(scans, radii(chosen), ctx.w) }, options.maxIterations - iterations);
+    last = await climb({ rings: chosen, scans, t: trueTube(scans, radii(chosen), ctx.w) }, options.maxIterations - iterations, iterations);
     restarts++;
     iterations += last.iterations;
     history.push(...last.history);
-    if (certified(last) || last.fin.state.t > best.fin.state.t) best = last;
+    // As between starts: the thicker tube, a certified one among tubes equal to the tolerance.
+    const tie = Math.abs(last.fin.state.t - best.fin.state.t) <= 10 * ctx.finalTol * best.fin.state.t;
+    if (tie ? certified(last) && !certified(best) : last.fin.state.t > best.fin.state.t) best = last;
   }
   if (restarts === 0) return first;
   return {
     ...best, iterations, history,
-    message: `${best.message}; restarted ${restarts} time(s) from perturbations of an arrangement that crept near the packing bound`,
+    message:
+      `${best.message}; restarted ${restarts} time(s) from perturbations of an arrangement that crept near the ` +
+      `packing bound (${iterations} outer iterations in all)`,
   };
 }
 
