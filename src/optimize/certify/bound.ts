@@ -9,7 +9,8 @@
 //     t <= r_k R_i / (w_min + r_k w_i).
 // k = 1 gives R/2 for equal rings (Cantarella–Kusner–Sullivan 2002: a linked component has length >= 4π at
 // unit thickness), k = 2 gives R/3. A ring no ring passes through still needs t·w_i <= R_i.
-import type { Bound } from '../../model/result.js';
+import type { Bound, Certificate } from '../../model/result.js';
+import { CERT_VIOLATION_TOL } from './certificate.js';
 import type { Ring } from '../../model/types.js';
 
 /**
@@ -66,4 +67,32 @@ export function packingBound(rings: Ring[], tubeRatios: number[], linking: numbe
 export function withGap(bound: Bound | null, tube: number): Bound | null {
   if (bound === null) return null;
   return { ...bound, gap: bound.tube > 0 ? (bound.tube - tube) / bound.tube : 0 };
+}
+
+/** Certificate method of a tube certified by equalling the packing bound. */
+export const BOUND_METHOD = 'packing-bound';
+
+/** The tube equals the bound to the relative tolerance (rounding may leave it a hair above). */
+export function boundAttained(t: number, bound: number, tol: number): boolean {
+  return bound > 0 && t > 0 && (bound - t) / bound <= tol;
+}
+
+/**
+ * The certificate of a tube that equals the packing bound: a global maximum, whatever the forces say. The
+ * Kuhn–Tucker figures of `kkt` are kept (a degenerate maximiser may balance poorly, or its second-order test
+ * may fail: with several sets of forces, the one found need not show the curvature is negative), and the
+ * note says which proof holds. Certified only without a violation beyond CERT_VIOLATION_TOL.
+ */
+export function boundCertificate(kkt: Certificate, t: number, bound: number): Certificate {
+  const gap = Math.max(0, (bound - t) / bound);
+  return {
+    ...kkt,
+    method: BOUND_METHOD,
+    certified: kkt.maxViolation <= CERT_VIOLATION_TOL,
+    note:
+      `The tube equals the packing bound to ${gap.toExponential(1)} (relative): no arrangement with this linking ` +
+      `has a thicker tube (circle packing in the hole of the bounding ring), so this is a global maximum. The ` +
+      `Kuhn-Tucker test alone did not certify it, as at a degenerate maximiser (a family of arrangements reaches ` +
+      `the bound): ${kkt.note}`,
+  };
 }

@@ -11,6 +11,8 @@ import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-
 import type { Constraint } from '../constraints/constraints.js';
 import { kktJacobianOf, type KktModel } from './kktNewton.js';
 import { analyseLdl, factorLdl, SymTriplets } from '../step/sparseLdl.js';
+import { CURVATURE_TOL } from './certificate.js';
+import { leastCurvatureOverForces } from './multiplierSet.js';
 
 /** Multipliers below this fraction of the largest do not restrict the critical subspace. */
 const POSITIVE_FORCE_REL = 1e-9;
@@ -57,6 +59,15 @@ export function criticalCurvature<C extends Constraint, P>(
   const binding = bindingRows(lambda);
   // Keeping every active contact stays inside the critical cone: positive curvature there is a saddle.
   const strict = curvatureOn(J, n, all);
+  if (strict.maxCurvature > CURVATURE_TOL && strict.basis !== null) {
+    // Forces that are not unique (a degenerate maximiser): the condition holds if some forces in their
+    // polytope make W negative semidefinite there (multiplierSet.ts); the critical cone is the subspace when
+    // some forces are positive on every active contact.
+    const least = leastCurvatureOverForces(model, active, lambda, strict.basis, L);
+    if (least !== null && least.fullSupport && least.maxCurvature < strict.maxCurvature) {
+      return { maxCurvature: least.maxCurvature, direction: least.direction };
+    }
+  }
   if (strict.maxCurvature > 0 || binding.length === all.length) return strict;
   // Only the binding contacts held: the cone also allows opening the others, so the direction counts
   // only if it (or its opposite) does not close an active contact to first order.
@@ -126,8 +137,8 @@ function bindingRows(lambda: Float64Array): number[] {
   return out;
 }
 
-/** Largest eigenvalue of W on {dz : ∇g_k·dz = 0 for k in rows} (rows of the KKT Jacobian). */
-function curvatureOn(J: Matrix, n: number, rows: number[]): Curvature {
+/** Largest eigenvalue of W on {dz : ∇g_k·dz = 0 for k in rows} (rows of the KKT Jacobian), with that subspace's basis. */
+function curvatureOn(J: Matrix, n: number, rows: number[]): Curvature & { basis: Matrix | null } {
   let N: Matrix;
   if (rows.length === 0) {
     N = Matrix.eye(n, n);
@@ -142,7 +153,7 @@ function curvatureOn(J: Matrix, n: number, rows: number[]): Curvature {
     const V = svd.rightSingularVectors;
     const cols: number[] = [];
     for (let j = 0; j < n; j++) if (!((s[j] ?? 0) > NULL_REL * smax)) cols.push(j);
-    if (cols.length === 0) return { maxCurvature: -Infinity, direction: null };
+    if (cols.length === 0) return { maxCurvature: -Infinity, direction: null, basis: null };
     N = new Matrix(n, cols.length);
     cols.forEach((j, c) => {
       for (let i = 0; i < n; i++) N.set(i, c, V.get(i, j));
@@ -158,5 +169,5 @@ function curvatureOn(J: Matrix, n: number, rows: number[]): Curvature {
   const dir = N.mmul(evd.eigenvectorMatrix.subMatrix(0, ev.length - 1, best, best)).getColumn(0);
   const norm = Math.hypot(...dir);
   // J's W block is already in the scaled coordinates (z / L), so its eigenvalues are dimensionless.
-  return { maxCurvature: ev[best]!, direction: norm > 0 ? Float64Array.from(dir.map((v) => v / norm)) : null };
+  return { maxCurvature: ev[best]!, direction: norm > 0 ? Float64Array.from(dir.map((v) => v / norm)) : null, basis: N };
 }

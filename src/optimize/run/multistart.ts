@@ -7,7 +7,7 @@ import type { Ring } from '../../model/types.js';
 import { ringOrbits } from '../../model/symmetry.js';
 import { expandContactOrbits } from '../../model/orbit.js';
 import { optimalityOf, optimalityText } from '../../model/result.js';
-import { packingBound, withGap } from '../certify/bound.js';
+import { boundAttained, packingBound, withGap } from '../certify/bound.js';
 import type { InflateProblem, SolveOutcome } from './problem.js';
 import { resultHead, runStarts, settleBest, type StartLoopOptions, type StartsRun } from './startLoop.js';
 
@@ -24,7 +24,12 @@ export async function runMultistart(problem: InflateProblem, options: Multistart
   const t0 = performance.now();
   // Surface a symmetry that does not fit the rings here, as bad input, not as a failed start in a worker.
   if (problem.symmetry) ringOrbits(problem.rings, problem.symmetry);
-  const run = await runStarts<SolveOutcome>(problem, options, (outcome, tol) => verifyOutcome(problem, outcome, tol));
+  // The packing bound holds for every arrangement with this linking: a verified start that reaches it is a global maximum.
+  const attains = (o: SolveOutcome): boolean => {
+    const bound = packingBound(o.rings, problem.tubeRatios, problem.linking);
+    return bound !== null && boundAttained(o.tube, bound.tube, options.tol);
+  };
+  const run = await runStarts<SolveOutcome>(problem, options, (outcome, tol) => verifyOutcome(problem, outcome, tol), attains);
   return buildResult(problem, options, run, (performance.now() - t0) / 1000);
 }
 

@@ -37,6 +37,8 @@ export interface PoolOptions {
   onResult?: (result: PoolResult) => void;
   /** Called now and then while a task runs (a few times a second at most per worker). */
   onIteration?: (taskId: number, iteration: number, tube: number) => void;
+  /** Asked before a task starts: true leaves it unrun (its result stays undefined). */
+  skip?: (index: number) => boolean;
 }
 
 /** Run every task on at most `workers` worker threads; results come back in task order. */
@@ -54,6 +56,7 @@ export async function runPool(tasks: PoolTask[], options: PoolOptions): Promise<
         let thread: SolveThread | null = null;
         while (next < tasks.length && !closed) {
           const index = next++;
+          if (options.skip?.(index)) continue;
           const task = tasks[index]!;
           const r = await runTask(task, options.onIteration, () => {
             if (closed) throw new Error('the worker pool was closed');

@@ -21,10 +21,11 @@ import { inflateOutcomeOut, inflateProblemIn, layoutFrame, optionsIn } from '../
 import { certify, CURVATURE_TOL } from '../certify/certificate.js';
 import type { Constraint, DepartureSpec } from '../constraints/constraints.js';
 import { readySolvers, type InnerAlgorithm } from '../step/localStep.js';
-import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished, type StepForces } from '../step/outerLoop.js';
+import { bindingContacts, CREEP_STOP, runOuterLoop, type Assessed, type LoopChart, type Polished, type StepForces } from '../step/outerLoop.js';
 import { carryMultipliers } from '../step/sqpStep.js';
 import { perturbRings } from '../chart/perturb.js';
 import { polish, ringKktModel } from '../certify/polish.js';
+import { packingBound } from '../certify/bound.js';
 import { criticalCurvature } from '../certify/secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
 import { linkingHolds, maxViolation, pairPlan, radiusLimit, scanPairs, trueTube, type PairPlan, type PairScan } from '../constraints/scan.js';
@@ -85,17 +86,28 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   const state: RingState = { rings: start, scans: startScans, t: trueTube(startScans, radii(start), w) };
   const gauge: GaugeGroup = dep ? { elements: dep.orbits.elements, origin: dep.orbits.origin } : { elements: orbits.elements, origin: orbits.origin };
   const ctx: Context = { orbits, pairs, w, dep, gauge, linking: problem.linking, scale, finalTol: Math.max(options.tol, 1e-15) };
-  const run = await runOuterLoop(state, {
+  const loopOptions = {
     scale, tMax: radiusLimit(radii(start), w), finalTol: ctx.finalTol, algorithm, stepMethod: options.step ?? 'sqp',
     maxIterations: options.maxIterations, maxEscapes: options.maxEscapes ?? MAX_ESCAPES, onIteration: options.onIteration,
     deadline: options.deadline,
+    // The packing bound holds for every arrangement with this linking: a tube that reaches it is a global maximum.
+    bound: packingBound(start, w, problem.linking)?.tube,
     // Under a departure bound ε a step of s moves the departure by at most s: try steps that fit first.
     escapeSizes: dep ? [0.25 * dep.epsilon / scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL,
-    chart: (s) => ringLoopChart(s, ctx),
-    admissible: (s) => withinDeparture(s.rings, dep) && sameLinking(s.rings, problem.linking),
-    polish: (s) => tryPolish(s, ctx),
-    assess: (s, p, f) => assess(s, ctx, p, f ?? null),
-  });
+    chart: (s: RingState) => ringLoopChart(s, ctx),
+    admissible: (s: RingState) => withinDeparture(s.rings, dep) && sameLinking(s.rings, problem.linking),
+    polish: (s: RingState) => tryPolish(s, ctx),
+    assess: (s: RingState, p: Polished<RingState> | null, f?: StepForces | null) => assess(s, ctx, p, f ?? null),
+  };
+  let run = await runOuterLoop(state, loopOptions);
+  // Creeping near the packing bound (a degenerate maximiser): climb again from perturbations of the best
+  // arrangement, within the same iteration budget; seeded from the start's seed, so any worker gets the same.
+  if (dep === null) {
+    const report = options.onIteration;
+    run = await restartNearBound(run, ctx, options, (s, maxIterations, done) => runOuterLoop(s, {
+      ...loopOptions, maxIterations, onIteration: report && ((i: number, t: number) => report(done + i, t)),
+    }));
+  }
   const fin = run.fin;
   return {
     status: run.status, tube: fin.state.t, rings: withTubes(fin.state.rings, fin.state.t, w), iterations: run.iterations,
@@ -105,6 +117,62 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
 }
 
 // --- helpers ---
+
+/** Restarts from a stalled arrangement that crept near the packing bound, at most. */
+const MAX_RESTARTS = 4;
+/** Size of a restart's perturbation (relative to each ring's radius, as SolveOptions.perturbation). */
+const RESTART_PERTURBATION = 0.05;
+
+type Run = Awaited<ReturnType<typeof runOuterLoop<RingState, Constraint, Posed, Final>>>;
+
+/**
+ * After a run that crept near the packing bound (outerLoop.ts CREEP_STOP), perturb the best arrangement and
+ * climb again, up to MAX_RESTARTS times while iterations remain and each climb creeps again; keep the thickest
+ * run (a certified one among equal tubes). Near a
+ * degenerate maximiser the ascent is drawn into corners where contacts form a continuum; a perturbation of
+ * 5 % of the radius lands in the basin of a regular point of the maximising family often enough (5 of 6
+ * restarts from the crept free torus:3, docs/free-torus3.md).
+ */
+async function restartNearBound(
+  first: Run, ctx: Context, options: SolveOptions, climb: (s: RingState, maxIterations: number, done: number) => Promise<Run>,
+): Promise<Run> {
+  let best = first;
+  let iterations = first.iterations;
+  const history = first.history.slice();
+  let last = first;
+  let restarts = 0;
+  const certified = (r: Run): boolean => r.status === 'optimal';
+  for (let k = 1; k <= MAX_RESTARTS && last.stopReason === CREEP_STOP && !certified(best) && iterations < options.maxIterations; k++) {
+    if (options.deadline !== undefined && Date.now() >= options.deadline) break;
+    const from = best.fin.state.rings;
+    let chosen: Ring[] | null = null;
+    for (let h = 0, size = RESTART_PERTURBATION; h < PERTURB_RETRIES && chosen === null; h++, size /= 2) {
+      const cand = perturbRings(from, ctx.orbits, restartSeed(options.seed, k), size);
+      if (startIsValid(cand, ctx.linking, ctx.w)) chosen = cand;
+    }
+    if (chosen === null) break;
+    const scans = scanPairs(posedOf(chosen, ctx.orbits), ctx.pairs, ctx.w);
+    last = await climb({ rings: chosen, scans, t: trueTube(scans, radii(chosen), ctx.w) }, options.maxIterations - iterations, iterations);
+    restarts++;
+    iterations += last.iterations;
+    history.push(...last.history);
+    // As between starts: the thicker tube, a certified one among tubes equal to the tolerance.
+    const tie = Math.abs(last.fin.state.t - best.fin.state.t) <= 10 * ctx.finalTol * best.fin.state.t;
+    if (tie ? certified(last) && !certified(best) : last.fin.state.t > best.fin.state.t) best = last;
+  }
+  if (restarts === 0) return first;
+  return {
+    ...best, iterations, history,
+    message:
+      `${best.message}; restarted ${restarts} time(s) from perturbations of an arrangement that crept near the ` +
+      `packing bound (${iterations} outer iterations in all)`,
+  };
+}
+
+/** A restart's seed: fixed by the start's seed and the restart's number (0 would mean "no perturbation"). */
+function restartSeed(seed: number, k: number): number {
+  return ((seed * 7919 + k * 104729) % 2147483647) || k;
+}
 
 /** The poses with their pair scans and true tube. */
 interface RingState {

@@ -31,6 +31,13 @@ export interface StartLoopOptions {
   onProgress?: (event: StartProgress) => void;
   /** Heard now and then while a start runs: which start, its outer iteration and current tube (layout units). */
   onIteration?: (event: StartHeartbeat) => void;
+  /**
+   * Stop once a start attains a proven upper bound (the caller's `attains`: for rings, the packing bound with
+   * the independent check passed): later starts cannot do better. The starts after the first one that attains
+   * it are not run, or, if a worker had already begun one, not counted, so the result is the same on any
+   * number of workers; the result lists only the starts up to that one.
+   */
+  stopAtBound?: boolean;
   /** Test-only: make the worker die, as on a WebAssembly abort, for these starts and algorithms. */
   simulateAbort?: { start: number; algorithms: Algorithm[] }[];
 }
@@ -83,6 +90,7 @@ export function startSeed(seed: number, k: number): number {
  */
 export async function runStarts<O extends SolveOutcome>(
   problem: PoolTask['problem'], options: StartLoopOptions, verify: (outcome: O, clearanceTolerance: number) => Verification,
+  attains?: (outcome: O) => boolean,
 ): Promise<StartsRun<O>> {
   const tasks: PoolTask[] = [];
   // One deadline for all starts, on the wall clock every worker shares.
@@ -110,15 +118,19 @@ export async function runStarts<O extends SolveOutcome>(
   const checked: CheckedStart<O>[] = new Array(tasks.length);
   let done = 0;
   let bestTube = NaN;
+  /** First start (by index) that attained the bound: later ones are skipped and not counted. */
+  let last = tasks.length - 1;
   const onIteration = options.onIteration;
   await runPool(tasks, {
     workers: options.workers,
+    skip: (index) => index > last,
     ...(onIteration ? { onIteration: (start: number, iteration: number, tube: number) => onIteration({ start, iteration, tube }) } : {}),
     onResult: (r) => {
       const outcome = r.outcome as O | null;
       const c: CheckedStart<O> = { result: r, outcome, verification: outcome ? verify(outcome, clearanceTolerance) : null };
       checked[r.id] = c;
       done++;
+      if (options.stopAtBound && attains && usable(c) && attains(outcome!)) last = Math.min(last, r.id);
       if (usable(c) && !(outcome!.tube <= bestTube)) bestTube = outcome!.tube;
       options.onProgress?.({
         done,
@@ -134,6 +146,7 @@ export async function runStarts<O extends SolveOutcome>(
     },
   });
 
+  checked.length = last + 1;
   const starts: StartRecord[] = checked.map((c, k) => ({
     seed: tasks[k]!.options.seed,
     status: c.outcome?.status ?? 'failed',

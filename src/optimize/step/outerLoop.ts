@@ -18,6 +18,7 @@ import type { Constraint } from '../constraints/constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
 import { carryMultipliers, QP_TOL, sqpStep, type SqpStepInput } from './sqpStep.js';
 import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
+import { BOUND_METHOD, boundAttained, boundCertificate } from '../certify/bound.js';
 import type { SolveOutcome } from '../run/problem.js';
 import {
   ACCEPT_RATIO, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO, MARGIN_BOXES,
@@ -33,6 +34,12 @@ const QP_TOL_MAX = 1e-9;
 
 /** The SQP step stops for lack of gain only below this fraction of the final tolerance. */
 const SQP_FINAL_GAIN_REL = 1e-3;
+
+/** Creep test (creepingNearBound): gap to the bound (relative) below which it applies, window in iterations. */
+const CREEP_GAP_REL = 1e-3;
+const CREEP_WINDOW = 10;
+/** Gaps within this many final tolerances of the bound are left to the polish (necklaces end ~8 tolerances short). */
+const CREEP_MIN_GAP_TOLS = 1e3;
 
 /** Forces below this fraction of the largest do not count as binding (the escape may open those contacts). */
 const BINDING_FORCE_REL = 1e-9;
@@ -79,6 +86,11 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
   onIteration?: ((iteration: number, tube: number) => void) | undefined;
   /** Date.now() milliseconds at which to stop (SolveOptions.deadline). */
   deadline?: number | undefined;
+  /**
+   * A proven upper bound on the tube (layout units; the packing bound), or none. A tube equal to it to
+   * finalTol ends the loop and is certified by it (certify/bound.ts boundCertificate).
+   */
+  bound?: number | undefined;
   chart(state: S): LoopChart<S, C, P>;
   /** Beyond a positive tube: the linking and any departure bound hold. */
   admissible(state: S): boolean;
@@ -138,6 +150,19 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   while (iterations < loop.maxIterations) {
     if (loop.deadline !== undefined && Date.now() >= loop.deadline) {
       stopReason = 'time limit';
+      break;
+    }
+    // At the bound nothing can gain: polish once (for the Kuhn–Tucker figures) and stop. A maximiser there is
+    // often degenerate (a family of arrangements), where saddle escapes and more steps only spend time.
+    if (loop.bound !== undefined && boundAttained(state.t, loop.bound, loop.finalTol)) {
+      const p = loop.polish(state);
+      if (p) {
+        state = p.state;
+        record();
+      }
+      const fin = loop.assess(state, p, carried);
+      if (best === null || fin.state.t >= best.state.t) best = fin;
+      stopReason = 'packing bound reached';
       break;
     }
     const chart = loop.chart(state);
@@ -246,18 +271,43 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       delta *= 0.25;
     }
     record();
+    if (loop.bound !== undefined && creepingNearBound(history, loop.bound, loop.finalTol)) {
+      stopReason = CREEP_STOP;
+      break;
+    }
   }
 
   let fin = best;
   if (fin === null || state.t > fin.state.t * (1 + loop.finalTol)) fin = loop.assess(state, null, carried);
+  if (loop.bound !== undefined && !fin.cert.certificate.certified && boundAttained(fin.state.t, loop.bound, loop.finalTol)) {
+    fin = { ...fin, cert: { ...fin.cert, certificate: boundCertificate(fin.cert.certificate, fin.state.t, loop.bound) } };
+  }
   const status = fin.cert.certificate.certified
     ? 'optimal'
     : stopReason === 'the local solver failed' && iterations <= MAX_STEP_FAILURES + 1 ? 'failed' : 'stalled';
   const message =
-    `${status === 'optimal' ? 'certified Kuhn-Tucker point' : status} after ${iterations} outer iterations` +
+    `${status !== 'optimal' ? status : fin.cert.certificate.method === BOUND_METHOD ? 'packing bound attained' : 'certified Kuhn-Tucker point'} after ${iterations} outer iterations` +
     ` (${stopReason}${fin.polishMessage ? `: ${fin.polishMessage}` : ''}${escapes > 0 ? `; left ${escapes} saddle(s)` : ''}); ` +
     `tube ${fin.state.t} (layout units)`;
   return { fin, status, message, iterations, history, escapes, stopReason };
+}
+
+/** Why the loop stops when it creeps near the bound (the caller may restart from a perturbation). */
+export const CREEP_STOP = 'creeping near the packing bound';
+
+/**
+ * The tube is within CREEP_GAP_REL of the bound, the gap is still well above the tolerance, and the last
+ * CREEP_WINDOW iterations gained less than the gap that remains: at that rate more than CREEP_WINDOW further
+ * iterations would be needed, which a superlinear method near a regular maximum never does. Seen where the
+ * maximiser is degenerate (the free torus:3 reaches R/3 on a family of arrangements whose corners touch along
+ * a continuum; the ascent creeps into such a corner: docs/free-torus3.md).
+ */
+function creepingNearBound(history: readonly number[], bound: number, tol: number): boolean {
+  const n = history.length;
+  if (n <= CREEP_WINDOW) return false;
+  const t = history[n - 1]!, gap = bound - t;
+  if (!(gap < CREEP_GAP_REL * bound) || !(gap > CREEP_MIN_GAP_TOLS * tol * bound)) return false;
+  return t - history[n - 1 - CREEP_WINDOW]! < gap;
 }
 
 /** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */
