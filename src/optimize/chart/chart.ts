@@ -186,6 +186,21 @@ export function addRingGradient(
   }
 }
 
+/** Free coordinates of the representatives of rings a and b (ascending, each once): a pair row's support. */
+export function pairSupport(chart: Chart, a: number, b: number): Int32Array {
+  const out: number[] = [];
+  const ra = chart.repOfRing[a]!, rb = chart.repOfRing[b]!;
+  for (const r of ra === rb ? [ra] : [ra, rb]) {
+    const rep = chart.reps[r]!;
+    const len = rep.bc.length + rep.bn.length;
+    for (let k = 0; k < len; k++) {
+      const f = chart.freeOf[rep.offset + k]!;
+      if (f >= 0) out.push(f);
+    }
+  }
+  return Int32Array.from(out).sort();
+}
+
 /** The rings at a posed configuration (names and radii from the base). */
 export function ringsOf(chart: Chart, posed: Posed): Ring[] {
   return chart.base.map((ring, j) => {

@@ -1,7 +1,7 @@
 // Gather the constraints of the local model at the chart's base pose: the kernel's struts of every pair
 // within reach of the trust region, sampled point-to-circle constraints along near-touching arcs, the
 // radius limit and the departure bound.
-import type { Chart, Posed } from '../chart/chart.js';
+import { pairSupport, type Chart, type Posed } from '../chart/chart.js';
 import { evaluate, newConstraint, type Constraint, type DepartureSpec } from './constraints.js';
 import type { PairScan } from './scan.js';
 
@@ -26,11 +26,19 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
   const out: Constraint[] = [];
   const nFree = chart.nFree;
   const probe = newConstraint('sample', 0, 0, 0, 0, 0, 0, true);
+  const supports = new Map<number, Int32Array>();
+  const support = (a: number, b: number): Int32Array => {
+    const key = Math.min(a, b) * chart.n + Math.max(a, b);
+    let s = supports.get(key);
+    if (s === undefined) supports.set(key, (s = pairSupport(chart, a, b)));
+    return s;
+  };
   for (const scan of scans) {
     if (scan.distance - opt.t * scan.c > opt.margin) continue;
     for (const k of scan.contacts) {
       if (k.d - opt.t * scan.c > opt.margin) continue;
       const con = newConstraint('strut', scan.a, scan.b, k.ta, k.tb, scan.c, nFree, scan.continuum !== null);
+      con.support = support(scan.a, scan.b);
       if (Number.isFinite(evaluate(con, chart, posed, true, opt.dep))) out.push(con);
     }
     if (!opt.samples) continue;
@@ -52,6 +60,7 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
         if (!Number.isFinite(g) || g - opt.t * scan.c > sampleMargin) continue;
         if (axisDistance(posed, a, probe.pb) < SAMPLE_AXIS_REL * posed.R[a]!) continue;
         const con = newConstraint('sample', a, b, 0, th, scan.c, nFree, true);
+        con.support = support(a, b);
         evaluate(con, chart, posed, true, opt.dep);
         out.push(con);
       }

@@ -28,6 +28,12 @@ export interface Constraint {
   /** g at the pose it was last evaluated at. */
   g: number;
   grad: Float64Array;
+  /**
+   * Free coordinates where `grad` can be nonzero (ascending), when the chart knows them (a strut or sample
+   * of the ring chart moves only its two rings' blocks); none: any. Lets the step read a row in time
+   * proportional to its own length, not the chart's.
+   */
+  support?: Int32Array;
   pa: Vec3;
   pb: Vec3;
   continuum: boolean;

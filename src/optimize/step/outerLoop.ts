@@ -355,7 +355,9 @@ function secondOrderCorrection<C extends Constraint, P>(
     const g = chart.model.evaluate(chart.model.copy(con as C), posed, false);
     if (!Number.isFinite(g)) return null;
     let lin = con.g;
-    for (let i = 0; i < n; i++) lin += con.grad[i]! * z[i]!;
+    const sup = con.support;
+    if (sup) for (const i of sup) lin += con.grad[i]! * z[i]!;
+    else for (let i = 0; i < n; i++) lin += con.grad[i]! * z[i]!;
     shift[k] = g - lin;
   }
   const s = sqpStep({ ...input, shift });

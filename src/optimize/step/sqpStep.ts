@@ -80,7 +80,10 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
   for (let k = 0; k < m; k++) {
     const con = cons[k]!;
     const G = con.grad;
-    for (let i = 0; i < nFree; i++) {
+    const sup = con.support;
+    const len = sup ? sup.length : nFree;
+    for (let p = 0; p < len; p++) {
+      const i = sup ? sup[p]! : p;
       if (G[i] !== 0) {
         colIdx.push(i);
         rowVal.push(-G[i]!);
