@@ -13,6 +13,12 @@ import { resolveSpec } from '../src/model/spec.js';
 import { trivialOrbits } from '../src/model/symmetry.js';
 import type { Ring, Vec3 } from '../src/model/types.js';
 import { boundAttained, packingBound } from '../src/optimize/certify/bound.js';
+import { certify, CURVATURE_TOL } from '../src/optimize/certify/certificate.js';
+import { ringKktModel } from '../src/optimize/certify/polish.js';
+import { criticalCurvature } from '../src/optimize/certify/secondOrder.js';
+import { buildChart, posedAt } from '../src/optimize/chart/chart.js';
+import { activeSet, collectConstraints } from '../src/optimize/constraints/collect.js';
+import { pairPlan, scanPairs, trueTube } from '../src/optimize/constraints/scan.js';
 import { perturbRings } from '../src/optimize/chart/perturb.js';
 import { runMultistart } from '../src/optimize/run/multistart.js';
 import { solveInflate } from '../src/optimize/run/solve.js';
@@ -87,6 +93,35 @@ describe('free torus:3: the maximum tube is R/3', () => {
     const wide = check(lineFamily(55, 55), 1 / 3);
     expect(wide.ok).toBe(false);
     expect(wide.messages.join(' ')).toMatch(/rings A and C/);
+  });
+
+  it('the second-order test does not call this maximum a saddle, whichever balancing forces it is handed', () => {
+    // The arrangement is a global maximum (hole-packing bound attained), so the second-order necessary
+    // condition holds for some balancing forces (Ben-Tal, Math. Programming 19, 1980); the forces here are not
+    // unique, and a test that judged by the forces it was handed saw curvature up to 0.08 for some of them.
+    for (const [ab, bc] of [[50, 50], [45, 60]] as const) {
+      const rings = lineFamily(ab, bc);
+      const orbits = trivialOrbits(3);
+      const chart = buildChart(rings, orbits, { elements: orbits.elements, origin: orbits.origin });
+      const posed = posedAt(chart, new Float64Array(chart.nFree));
+      const scans = scanPairs(posed, pairPlan(orbits, 3), [1, 1, 1]);
+      const t = trueTube(scans, Float64Array.from([1, 1, 1]), [1, 1, 1]);
+      const active = activeSet(collectConstraints(chart, posed, scans, { t, margin: 1e-3 * t, w: [1, 1, 1], dep: null, samples: true }), t, 1e-9 * t);
+      expect(active).toHaveLength(5);
+      const balance = (cons: typeof active) =>
+        certify({ active: cons, nFree: chart.nFree, maxViolation: 0, activeTol: 1e-9, activeTolLimit: 1, polished: true });
+      const first = balance(active);
+      expect(first.certificate.balanceResidual).toBeLessThan(1e-12);
+      // Another set of balancing forces: without the first strut (zero force on it), then the mixture.
+      const rest = balance(active.slice(1));
+      expect(rest.certificate.balanceResidual).toBeLessThan(1e-12);
+      const other = Float64Array.from([0, ...rest.lambda]);
+      const mixed = Float64Array.from(first.lambda, (v, k) => (v + other[k]!) / 2);
+      for (const lambda of [first.lambda, other, mixed]) {
+        const curv = criticalCurvature(ringKktModel(chart, null), active, lambda, 1);
+        expect(curv!.maxCurvature).toBeLessThanOrEqual(CURVATURE_TOL);
+      }
+    }
   });
 
   it('the solver climbs back to R/3 from near the family and certifies it; the checker agrees', async () => {

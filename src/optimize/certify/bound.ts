@@ -92,7 +92,8 @@ export function boundCertificate(kkt: Certificate, t: number, bound: number): Ce
     note:
       `The tube equals the packing bound to ${gap.toExponential(1)} (relative): no arrangement with this linking ` +
       `has a thicker tube (circle packing in the hole of the bounding ring), so this is a global maximum. The ` +
-      `Kuhn-Tucker test alone did not certify it, as at a degenerate maximiser (a family of arrangements reaches ` +
-      `the bound): ${kkt.note}`,
+      `Kuhn-Tucker test alone did not certify it (forces on ${kkt.activeStruts} near contacts balance to ` +
+      `${kkt.balanceResidual.toExponential(1)}, relative), as is common where a whole family of arrangements ` +
+      `reaches the bound (a degenerate maximiser).`,
   };
 }

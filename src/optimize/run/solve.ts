@@ -86,12 +86,17 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   const state: RingState = { rings: start, scans: startScans, t: trueTube(startScans, radii(start), w) };
   const gauge: GaugeGroup = dep ? { elements: dep.orbits.elements, origin: dep.orbits.origin } : { elements: orbits.elements, origin: orbits.origin };
   const ctx: Context = { orbits, pairs, w, dep, gauge, linking: problem.linking, scale, finalTol: Math.max(options.tol, 1e-15) };
+  // Restarts near the bound for small links only: a restart climbs again from a perturbation of every ring,
+  // about the cost of a new solve, and long chains and necklaces slow down near R/3 and recover by themselves
+  // (necklace:24 stagnates ~20 iterations at 1.5e-5 below it, then converges).
+  const restartable = dep === null && n <= RESTART_MAX_RINGS;
   const loopOptions = {
     scale, tMax: radiusLimit(radii(start), w), finalTol: ctx.finalTol, algorithm, stepMethod: options.step ?? 'sqp',
     maxIterations: options.maxIterations, maxEscapes: options.maxEscapes ?? MAX_ESCAPES, onIteration: options.onIteration,
     deadline: options.deadline,
     // The packing bound holds for every arrangement with this linking: a tube that reaches it is a global maximum.
     bound: packingBound(start, w, problem.linking)?.tube,
+    creepStop: restartable,
     // Under a departure bound ε a step of s moves the departure by at most s: try steps that fit first.
     escapeSizes: dep ? [0.25 * dep.epsilon / scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL,
     chart: (s: RingState) => ringLoopChart(s, ctx),
@@ -102,7 +107,7 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
   let run = await runOuterLoop(state, loopOptions);
   // Creeping near the packing bound (a degenerate maximiser): climb again from perturbations of the best
   // arrangement, within the same iteration budget; seeded from the start's seed, so any worker gets the same.
-  if (dep === null) {
+  if (restartable) {
     const report = options.onIteration;
     run = await restartNearBound(run, ctx, options, (s, maxIterations, done) => runOuterLoop(s, {
       ...loopOptions, maxIterations, onIteration: report && ((i: number, t: number) => report(done + i, t)),
@@ -118,8 +123,9 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
 
 // --- helpers ---
 
-/** Restarts from a stalled arrangement that crept near the packing bound, at most. */
+/** Restarts from a stalled arrangement that crept near the packing bound, at most, and only up to this many rings. */
 const MAX_RESTARTS = 4;
+const RESTART_MAX_RINGS = 8;
 /** Size of a restart's perturbation (relative to each ring's radius, as SolveOptions.perturbation). */
 const RESTART_PERTURBATION = 0.05;
 

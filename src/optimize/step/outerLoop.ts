@@ -91,6 +91,8 @@ export interface OuterLoop<S extends { t: number }, C extends Constraint, P, A e
    * finalTol ends the loop and is certified by it (certify/bound.ts boundCertificate).
    */
   bound?: number | undefined;
+  /** Stop when creeping near the bound (CREEP_STOP), for a caller that restarts from there. */
+  creepStop?: boolean;
   chart(state: S): LoopChart<S, C, P>;
   /** Beyond a positive tube: the linking and any departure bound hold. */
   admissible(state: S): boolean;
@@ -271,7 +273,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       delta *= 0.25;
     }
     record();
-    if (loop.bound !== undefined && creepingNearBound(history, loop.bound, loop.finalTol)) {
+    if (loop.creepStop === true && loop.bound !== undefined && creepingNearBound(history, loop.bound, loop.finalTol)) {
       stopReason = CREEP_STOP;
       break;
     }
