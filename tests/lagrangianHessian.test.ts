@@ -20,8 +20,7 @@ import {
 } from '../src/optimize/constraints/lagrangianHessian.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf } from '../src/optimize/chart/periodicChart.js';
 import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint } from '../src/optimize/constraints/periodicConstraints.js';
-import { periodicKktModel } from '../src/optimize/certify/periodicPolish.js';
-import { ringKktModel, useExactHessian } from '../src/optimize/certify/polish.js';
+import { periodicKktModel, ringKktModel, useExactHessian } from '../src/optimize/certify/polish.js';
 import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
 import { pairPlan, scanPairs } from '../src/optimize/constraints/scan.js';
 import { torusLinkStart } from '../src/optimize/run/testPoses.js';

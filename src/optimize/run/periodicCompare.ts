@@ -11,7 +11,7 @@ import type { CompareResult } from '../../model/result.js';
 import type { Lattice, Ring } from '../../model/types.js';
 import type { StartProgress } from './multistart.js';
 import { runPeriodicMultistart, type PeriodicSolveResult } from './periodicMultistart.js';
-import type { PeriodicProblem } from './periodicProblem.js';
+import type { PeriodicProblem } from './problem.js';
 import { comparisonNotes, problemOf, refuseSymmetry, type PeriodicRunOptions } from './periodicRun.js';
 
 export interface PeriodicCompareResult extends CompareResult {

@@ -8,7 +8,7 @@ import type { WeaveWeight } from '../../model/periodicMaterials.js';
 import type { Bound, SolveResult, Verification } from '../../model/result.js';
 import type { Lattice } from '../../model/types.js';
 import { packingRadius, withGap } from '../certify/bound.js';
-import type { PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
+import type { PeriodicOutcome, PeriodicProblem } from './problem.js';
 import { resultHead, runStarts, settleBest, type StartLoopOptions, type StartsRun } from './startLoop.js';
 
 export interface PeriodicFigures {

@@ -6,7 +6,7 @@ import { resolvePeriodicSpec, type ResolvedPeriodic } from '../../model/periodic
 import type { StartProgress } from './multistart.js';
 import type { StartHeartbeat } from './startLoop.js';
 import { runPeriodicMultistart, type PeriodicSolveResult } from './periodicMultistart.js';
-import type { PeriodicProblem } from './periodicProblem.js';
+import type { PeriodicProblem } from './problem.js';
 
 export interface PeriodicRunOptions {
   starts: number;

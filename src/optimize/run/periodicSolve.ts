@@ -22,8 +22,8 @@ import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart, type 
 import {
   evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
 } from '../constraints/periodicConstraints.js';
-import { periodicKktModel, polishPeriodic } from '../certify/periodicPolish.js';
-import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
+import { periodicKktModel, polishPeriodic } from '../certify/polish.js';
+import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './problem.js';
 import type { SolveOptions } from './problem.js';
 import { maxViolation, periodicNearPairs, scanMargin, trueTube } from '../constraints/scan.js';
 import { criticalCurvature } from '../certify/secondOrder.js';
