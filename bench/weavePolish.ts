@@ -15,11 +15,11 @@ import { weaveEntries, weaveLayout } from '../src/model/weaves.js';
 import { certify } from '../src/optimize/certify/certificate.js';
 import { useExactHessian } from '../src/optimize/constraints/lagrangianHessian.js';
 import { seededRandom } from '../src/optimize/chart/perturb.js';
-import { angleOf, pointOn } from '../src/optimize/constraints/constraints.js';
-import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicPosed } from '../src/optimize/chart/periodicChart.js';
 import {
-  evaluatePeriodic, latticeVectors, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint,
-} from '../src/optimize/constraints/periodicConstraints.js';
+  angleOf, evaluatePeriodic, newPeriodicConstraint, pointOn, type PeriodicConstraint,
+} from '../src/optimize/constraints/constraints.js';
+import { scanPeriodic } from '../src/optimize/constraints/scan.js';
+import { buildPeriodicChart, latticeVectors, periodicPosedAt, stateOf, type PeriodicPosed } from '../src/optimize/chart/periodicChart.js';
 import { kktJacobianOf } from '../src/optimize/certify/kktNewton.js';
 import { periodicKktModel, polishPeriodic, type PeriodicPolishResult } from '../src/optimize/certify/polish.js';
 import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/problem.js';

@@ -9,8 +9,7 @@
 //                               halvings are allowed.
 import { posedAt, type Chart, type Posed } from '../chart/chart.js';
 import { periodicPosedAt, type PeriodicChart, type PeriodicPosed } from '../chart/periodicChart.js';
-import { evaluate, type Constraint, type DepartureSpec } from '../constraints/constraints.js';
-import { evaluatePeriodic, type PeriodicConstraint } from '../constraints/periodicConstraints.js';
+import { evaluate, evaluatePeriodic, type Constraint, type DepartureSpec, type PeriodicConstraint } from '../constraints/constraints.js';
 import { polishKkt, type KktModel, type KktResult, type KktSettings } from './kktNewton.js';
 import {
   addPeriodicLagrangianHessian, addRingLagrangianHessian, exactHessianOn, periodicLagrangianHessian, ringLagrangianHessian,

@@ -19,13 +19,12 @@ import { readySolvers, type InnerAlgorithm } from '../step/localStep.js';
 import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from '../step/outerLoop.js';
 import { seededRandom } from '../chart/perturb.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart, type PeriodicPosed } from '../chart/periodicChart.js';
-import {
-  evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
-} from '../constraints/periodicConstraints.js';
+import type { PeriodicConstraint } from '../constraints/constraints.js';
+import { collectPeriodicConstraints } from '../constraints/collect.js';
 import { periodicKktModel, polishPeriodic } from '../certify/polish.js';
 import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './problem.js';
 import type { SolveOptions } from './problem.js';
-import { maxViolation, periodicNearPairs, scanMargin, trueTube } from '../constraints/scan.js';
+import { maxViolation, periodicNearPairs, scanMargin, scanPeriodic, trueTube, type PeriodicPair, type PeriodicScan } from '../constraints/scan.js';
 import { criticalCurvature } from '../certify/secondOrder.js';
 import {
   ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
@@ -128,28 +127,7 @@ function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
 /** Struts within `margin` (layout units) of touching, with gradients, and the radius limit. */
 function collect(pc: PeriodicChart, state: State, ctx: Ctx, margin: number): PeriodicConstraint[] {
   const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
-  const out: PeriodicConstraint[] = [];
-  for (const s of state.scans) {
-    if (s.distance - state.t * s.c > margin) continue;
-    for (const k of s.contacts) {
-      if (k.d - state.t * s.c > margin) continue;
-      const con = newPeriodicConstraint('strut', s.a, s.b, s.shift, k.ta, k.tb, s.c, pc.nFree, s.continuum !== null);
-      if (Number.isFinite(evaluatePeriodic(con, pc, pp, true))) out.push(con);
-    }
-  }
-  let best = -1, lim = Infinity;
-  ctx.w.forEach((wi, i) => {
-    if (ctx.R[i]! / wi < lim) {
-      lim = ctx.R[i]! / wi;
-      best = i;
-    }
-  });
-  if (best >= 0 && lim - state.t <= margin) {
-    const con = newPeriodicConstraint('radius', best, best, [], 0, 0, 1, pc.nFree);
-    con.g = lim;
-    out.push(con);
-  }
-  return out;
+  return collectPeriodicConstraints(pc, pp, state.scans, { t: state.t, margin, w: ctx.w });
 }
 
 /** Newton on the active set for each candidate threshold; accepted only if the kernel agrees. */
