@@ -22,5 +22,5 @@ export { compare } from './analyze/compare.js';
 export { symmetryBreakingSweep } from './analyze/sweep.js';
 export { analyzePlay, type PlayReport } from './analyze/play.js';
 export { runPeriodicInflate } from './optimize/run/periodicRun.js';
-export { runPeriodicMultistart } from './optimize/run/periodicMultistart.js';
+export { runPeriodicMultistart } from './optimize/run/multistart.js';
 export { weaveEntries } from './model/weaves.js';

@@ -32,7 +32,7 @@ import { CURVATURE_TOL } from '../src/optimize/certify/certificate.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from '../src/optimize/chart/periodicChart.js';
 import { evaluatePeriodic, newPeriodicConstraint, type PeriodicConstraint } from '../src/optimize/constraints/constraints.js';
 import { scanPeriodic, type PeriodicScan } from '../src/optimize/constraints/scan.js';
-import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/run/periodicMultistart.js';
+import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/run/multistart.js';
 import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/problem.js';
 import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
 

@@ -9,8 +9,7 @@ import { expandCells, periodicLinks, sameLinks } from '../../model/periodic.js';
 import { resolvePeriodicSpec } from '../../model/periodicSpec.js';
 import type { CompareResult } from '../../model/result.js';
 import type { Lattice, Ring } from '../../model/types.js';
-import type { StartProgress } from './multistart.js';
-import { runPeriodicMultistart, type PeriodicSolveResult } from './periodicMultistart.js';
+import { runPeriodicMultistart, type PeriodicSolveResult, type StartProgress } from './multistart.js';
 import type { PeriodicProblem } from './problem.js';
 import { comparisonNotes, problemOf, refuseSymmetry, type PeriodicRunOptions } from './periodicRun.js';
 

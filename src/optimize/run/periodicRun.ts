@@ -3,9 +3,8 @@
 import { InputError } from '../../model/errors.js';
 import { parseDensity, parseWireDiameter, weaveWeight } from '../../model/periodicMaterials.js';
 import { resolvePeriodicSpec, type ResolvedPeriodic } from '../../model/periodicSpec.js';
-import type { StartProgress } from './multistart.js';
 import type { StartHeartbeat } from './startLoop.js';
-import { runPeriodicMultistart, type PeriodicSolveResult } from './periodicMultistart.js';
+import { runPeriodicMultistart, type PeriodicSolveResult, type StartProgress } from './multistart.js';
 import type { PeriodicProblem } from './problem.js';
 
 export interface PeriodicRunOptions {
