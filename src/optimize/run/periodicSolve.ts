@@ -1,5 +1,5 @@
 // Inflate a periodic arrangement (a weave): maximise the common tube over the cell's ring poses and the
-// lattice vectors (periodicProblem.ts). The outer trust-region loop is that of solve.ts (outerLoop.ts) on a
+// lattice vectors (problem.ts PeriodicProblem). The outer trust-region loop is that of solve.ts (outerLoop.ts) on a
 // periodic chart: at the current arrangement the kernel finds every strut between a cell ring and every
 // image within reach; the struts are linearised (images chained to their ring and to the lattice vectors)
 // and the proximal QP of localStep.ts proposes a step (HiGHS bounded in time), judged on the exact kernel
@@ -9,7 +9,7 @@
 // a maximum from a saddle. At a saddle the loop steps off along the ascent direction, lattice vectors
 // included (saddleEscape.ts), and climbs again, as the ring solver does; a saddle it ends on is reported,
 // not certified. The polish and the assessment are those of every chart (solveOnChart.ts); this file sets
-// up the periodic problem and hands over the periodic chart with what differs on it (data in weaveSolve).
+// up the periodic problem and hands over the periodic chart with what differs on it (weaveSolve).
 import { InputError } from '../../model/errors.js';
 import { periodicLinks, sameLinks } from '../../model/periodic.js';
 import { MAX_LATTICE_REACH } from '../../model/ringPairs.js';
