@@ -1,6 +1,6 @@
 // Weave polish benchmark: the exact Lagrangian Hessian (lagrangianHessian.ts) against the differenced one
 // (central differences of the envelope gradients, the baseline), measured in the same run.
-//  1. Newton on the KKT system (periodicPolish.ts) of each catalogue weave's optimum, from the optimum's
+//  1. Newton on the KKT system (certify/polish.ts, the periodic settings) of each catalogue weave's optimum, from the optimum's
 //     active struts re-tracked at a seeded nearby arrangement (every pose and lattice coordinate moved by up
 //     to 1e-3 R, --nearby): Newton steps, KKT residual, time, and the tube both reach; and the time of one
 //     KKT Jacobian (the Hessian block is the only difference) at the first start.
@@ -15,14 +15,14 @@ import { weaveEntries, weaveLayout } from '../src/model/weaves.js';
 import { certify } from '../src/optimize/certify/certificate.js';
 import { useExactHessian } from '../src/optimize/constraints/lagrangianHessian.js';
 import { seededRandom } from '../src/optimize/chart/perturb.js';
-import { angleOf, pointOn } from '../src/optimize/constraints/constraints.js';
-import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicPosed } from '../src/optimize/chart/periodicChart.js';
 import {
-  evaluatePeriodic, latticeVectors, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint,
-} from '../src/optimize/constraints/periodicConstraints.js';
+  angleOf, evaluatePeriodic, newPeriodicConstraint, pointOn, type PeriodicConstraint,
+} from '../src/optimize/constraints/constraints.js';
+import { scanPeriodic } from '../src/optimize/constraints/scan.js';
+import { buildPeriodicChart, latticeVectors, periodicPosedAt, stateOf, type PeriodicPosed } from '../src/optimize/chart/periodicChart.js';
 import { kktJacobianOf } from '../src/optimize/certify/kktNewton.js';
-import { periodicKktModel, polishPeriodic, type PeriodicPolishResult } from '../src/optimize/certify/periodicPolish.js';
-import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/periodicProblem.js';
+import { periodicKktModel, polishPeriodic, type PeriodicPolishResult } from '../src/optimize/certify/polish.js';
+import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/problem.js';
 import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
 import { benchArgs, median } from './stats.js';
 

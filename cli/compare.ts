@@ -12,7 +12,7 @@ import { isPeriodicArg } from '../src/model/periodicSpec.js';
 import type { CompareResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
-import { runPeriodicCompare, type PeriodicCompareResult } from '../src/optimize/run/periodicCompare.js';
+import { runPeriodicCompare, type PeriodicCompareResult } from '../src/optimize/run/weave.js';
 import { formatSummary } from '../reports/summary.js';
 import { emitResult } from './files.js';
 import type { Io } from './io.js';
@@ -70,7 +70,7 @@ export async function runCompare(arg: string, options: SolveCliOptions, sweepPoi
   }
 }
 
-/** Weaves: one repeated cell vs a supercell (src/optimize/run/periodicCompare.ts); the weight is the cell optimum's. */
+/** Weaves: one repeated cell vs a supercell (src/optimize/run/weave.ts); the weight is the cell optimum's. */
 export async function runWeaveCompare(arg: string, options: SolveCliOptions, raw: Record<string, unknown>, io: Io): Promise<{ result: PeriodicCompareResult; notes: string[] }> {
   if (raw['sweepPoints'] !== undefined) throw new InputError('--sweep-points: weaves have no symmetry-breaking curve (compare solves one cell and a supercell); leave it out');
   // Bad --density or --wire-diameter is reported before any solve.

@@ -12,10 +12,9 @@ import { InputError } from '../src/model/errors.js';
 import { isPeriodicArg } from '../src/model/periodicSpec.js';
 import { BOUND_ATTAINED, optimalityOf, optimalityText, type SolveResult } from '../src/model/result.js';
 import { resolveSpec } from '../src/model/spec.js';
-import { runMultistart, type StartProgress } from '../src/optimize/run/multistart.js';
+import { runMultistart, type PeriodicSolveResult, type StartProgress } from '../src/optimize/run/multistart.js';
 import type { StartHeartbeat } from '../src/optimize/run/startLoop.js';
-import type { PeriodicSolveResult } from '../src/optimize/run/periodicMultistart.js';
-import { runPeriodicInflate } from '../src/optimize/run/periodicRun.js';
+import { runPeriodicInflate } from '../src/optimize/run/weave.js';
 import type { InflateProblem } from '../src/optimize/run/problem.js';
 import { emitResult } from './files.js';
 import type { Io } from './io.js';
@@ -106,7 +105,7 @@ const WEAVE_FLAGS = [
   { key: 'density', name: '--density' }, { key: 'wireDiameter', name: '--wire-diameter' }, { key: 'repeats', name: '--repeats' },
 ] as const;
 
-/** A weave: the periodic solve (src/optimize/run/periodicRun.ts), optionally expanded into a block of cells. */
+/** A weave: the periodic solve (src/optimize/run/weave.ts), optionally expanded into a block of cells. */
 export async function runWeaveInflate(arg: string, options: SolveCliOptions, raw: Record<string, unknown>, io: Io, command = 'inflate'): Promise<InflateRun> {
   const repeats = raw['repeats'] === undefined ? undefined : repeatCount(raw['repeats']);
   const progress = progressReporter(io, options.starts);

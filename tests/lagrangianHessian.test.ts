@@ -13,17 +13,15 @@ import type { Lattice, Ring, Symmetry } from '../src/model/types.js';
 import { weaveEntries, weaveLayout } from '../src/model/weaves.js';
 import { buildChart, posedAt, type Chart } from '../src/optimize/chart/chart.js';
 import { collectConstraints } from '../src/optimize/constraints/collect.js';
-import type { Constraint } from '../src/optimize/constraints/constraints.js';
 import { kktJacobianOf, type KktModel } from '../src/optimize/certify/kktNewton.js';
 import {
   addPeriodicLagrangianHessian, addRingLagrangianHessian, periodicLagrangianHessian, ringLagrangianHessian,
 } from '../src/optimize/constraints/lagrangianHessian.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf } from '../src/optimize/chart/periodicChart.js';
-import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint } from '../src/optimize/constraints/periodicConstraints.js';
-import { periodicKktModel } from '../src/optimize/certify/periodicPolish.js';
-import { ringKktModel, useExactHessian } from '../src/optimize/certify/polish.js';
+import { evaluatePeriodic, newPeriodicConstraint, type Constraint, type PeriodicConstraint } from '../src/optimize/constraints/constraints.js';
+import { periodicKktModel, ringKktModel, useExactHessian } from '../src/optimize/certify/polish.js';
 import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
-import { pairPlan, scanPairs } from '../src/optimize/constraints/scan.js';
+import { pairPlan, scanPairs, scanPeriodic } from '../src/optimize/constraints/scan.js';
 import { torusLinkStart } from '../src/optimize/run/testPoses.js';
 import { star } from './optimizeLayouts.js';
 import { rng } from './reference/rng.js';

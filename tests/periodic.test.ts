@@ -30,9 +30,10 @@ import { rotate } from '../src/model/vec.js';
 import { weaveLayout } from '../src/model/weaves.js';
 import { CURVATURE_TOL } from '../src/optimize/certify/certificate.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart } from '../src/optimize/chart/periodicChart.js';
-import { evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicScan } from '../src/optimize/constraints/periodicConstraints.js';
-import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/run/periodicMultistart.js';
-import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/periodicProblem.js';
+import { evaluatePeriodic, newPeriodicConstraint, type PeriodicConstraint } from '../src/optimize/constraints/constraints.js';
+import { scanPeriodic, type PeriodicScan } from '../src/optimize/constraints/scan.js';
+import { runPeriodicMultistart, verifyPeriodic, type PeriodicMultistartOptions, type PeriodicSolveResult } from '../src/optimize/run/multistart.js';
+import type { PeriodicOutcome, PeriodicProblem } from '../src/optimize/run/problem.js';
 import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
 
 function problemOf(spec: string): PeriodicProblem {

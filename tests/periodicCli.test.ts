@@ -10,8 +10,8 @@ import { Ajv2020 } from 'ajv/dist/2020.js';
 import { describe, expect, it } from 'vitest';
 import { run } from './cliHarness.js';
 import { readResultFile } from '../src/model/resultFile.js';
-import type { PeriodicCompareResult } from '../src/optimize/run/periodicCompare.js';
-import type { PeriodicSolveResult } from '../src/optimize/run/periodicMultistart.js';
+import type { PeriodicCompareResult } from '../src/optimize/run/weave.js';
+import type { PeriodicSolveResult } from '../src/optimize/run/multistart.js';
 
 
 const dir = mkdtempSync(join(tmpdir(), 'thickring-weave-cli-'));

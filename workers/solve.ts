@@ -4,9 +4,8 @@
 import * as Comlink from 'comlink';
 import nodeEndpoint from 'comlink/dist/esm/node-adapter.mjs';
 import { parentPort } from 'node:worker_threads';
-import { isPeriodicProblem, type PeriodicProblem } from '../src/optimize/run/periodicProblem.js';
+import { isPeriodicProblem, type InflateProblem, type PeriodicProblem, type SolveOptions, type SolveOutcome } from '../src/optimize/run/problem.js';
 import { solvePeriodic } from '../src/optimize/run/periodicSolve.js';
-import type { InflateProblem, SolveOptions, SolveOutcome } from '../src/optimize/run/problem.js';
 import { solveInflate } from '../src/optimize/run/solve.js';
 import { releaseProgress, throttledProgress } from './progress.js';
 

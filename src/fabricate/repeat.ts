@@ -5,7 +5,7 @@ import { blockLinking, blockShifts, expandCells, latticeOffset } from '../model/
 import { InputError } from '../model/errors.js';
 import type { ResultContact, ResultRing, SolveResult } from '../model/result.js';
 import type { Vec3 } from '../model/types.js';
-import type { PeriodicSolveResult } from '../optimize/run/periodicMultistart.js';
+import type { PeriodicSolveResult } from '../optimize/run/multistart.js';
 
 /** Largest number of cells per lattice direction; the block must also stay within MAX_BLOCK_RINGS. */
 export const MAX_REPEATS = 256;

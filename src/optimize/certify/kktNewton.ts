@@ -1,5 +1,5 @@
 // Newton's method on the KKT system of the identified active constraints, to full precision; shared by the
-// free-ring polish (polish.ts) and the periodic one (periodicPolish.ts), which differ only in the chart
+// free-ring polish and the periodic one (both in polish.ts), which differ only in the chart
 // (how poses follow from z, how a constraint is evaluated there) and in the step solvers.
 //
 // Unknowns: chart coordinates z, tube t, multipliers λ. With h_k = g_k(z) - c_k t and L = t + Σ λ_k h_k:

@@ -13,8 +13,9 @@
 // runs on the mapped-back rings in the original frame, as for every result.
 import type { Ring, Symmetry, Vec3 } from '../../model/types.js';
 import { packingBound } from '../certify/bound.js';
-import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from '../run/periodicProblem.js';
-import type { InflateProblem, SolveOptions, SolveOutcome } from '../run/problem.js';
+import type {
+  InflateProblem, PeriodicContact, PeriodicOutcome, PeriodicProblem, SolveOptions, SolveOutcome,
+} from '../run/problem.js';
 
 export interface LayoutFrame {
   /** The original-frame point that becomes the origin (layout units). */

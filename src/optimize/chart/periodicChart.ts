@@ -79,6 +79,13 @@ export function addImageGradient(
   }
 }
 
+/** The lattice vectors of a posed configuration. */
+export function latticeVectors(pp: PeriodicPosed): Vec3[] {
+  const out: Vec3[] = [];
+  for (let k = 0; k < pp.L.length / 3; k++) out.push([pp.L[3 * k]!, pp.L[3 * k + 1]!, pp.L[3 * k + 2]!]);
+  return out;
+}
+
 /** Gather a full-variable vector into free coordinates. */
 export function toFree(pc: PeriodicChart, full: Float64Array, out: Float64Array): void {
   for (let k = 0; k < pc.nFree; k++) out[k] = full[pc.free[k]!]!;

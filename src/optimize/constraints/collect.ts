@@ -1,9 +1,12 @@
 // Gather the constraints of the local model at the chart's base pose: the kernel's struts of every pair
-// within reach of the trust region, sampled point-to-circle constraints along near-touching arcs, the
-// radius limit and the departure bound.
+// within reach of the trust region, the radius limit, and on the ring chart also sampled point-to-circle
+// constraints along near-touching arcs and the departure bound (the periodic chart has neither).
 import { pairSupport, type Chart, type Posed } from '../chart/chart.js';
-import { evaluate, newConstraint, type Constraint, type DepartureSpec } from './constraints.js';
-import type { PairScan } from './scan.js';
+import type { PeriodicChart, PeriodicPosed } from '../chart/periodicChart.js';
+import {
+  evaluate, evaluatePeriodic, newConstraint, newPeriodicConstraint, type Constraint, type DepartureSpec, type PeriodicConstraint,
+} from './constraints.js';
+import type { PairScan, PeriodicScan } from './scan.js';
 
 /** Points per ring sampled for near-continuum contacts. */
 export const SAMPLES_PER_RING = 16;
@@ -66,26 +69,50 @@ export function collectConstraints(chart: Chart, posed: Posed, scans: readonly P
       }
     }
   }
-  // The tightest radius limit t·w_i <= R_i (the others are implied).
-  let best = -1, lim = Infinity;
-  for (let i = 0; i < opt.w.length; i++) {
-    const v = posed.R[i]! / opt.w[i]!;
-    if (v < lim) {
-      lim = v;
-      best = i;
-    }
-  }
-  if (best >= 0 && lim - opt.t <= opt.margin) {
-    const con = newConstraint('radius', best, best, 0, 0, 1, nFree);
-    con.g = lim;
-    out.push(con);
-  }
+  const radius = radiusLimit(posed.R, opt, (i) => newConstraint('radius', i, i, 0, 0, 1, nFree));
+  if (radius) out.push(radius);
   if (opt.dep) {
     const con = newConstraint('departure', 0, 0, 0, 0, 0, nFree);
     const g = evaluate(con, chart, posed, true, opt.dep);
     if (Number.isFinite(g) && g <= opt.margin) out.push(con);
   }
   return out;
+}
+
+/** Struts of the periodic chart (cell ring to image) within opt.margin of touching, and the radius limit. */
+export function collectPeriodicConstraints(
+  pc: PeriodicChart, pp: PeriodicPosed, scans: readonly PeriodicScan[], opt: { t: number; margin: number; w: readonly number[] },
+): PeriodicConstraint[] {
+  const out: PeriodicConstraint[] = [];
+  for (const s of scans) {
+    if (s.distance - opt.t * s.c > opt.margin) continue;
+    for (const k of s.contacts) {
+      if (k.d - opt.t * s.c > opt.margin) continue;
+      const con = newPeriodicConstraint('strut', s.a, s.b, s.shift, k.ta, k.tb, s.c, pc.nFree, s.continuum !== null);
+      if (Number.isFinite(evaluatePeriodic(con, pc, pp, true))) out.push(con);
+    }
+  }
+  const radius = radiusLimit(pp.posed.R, opt, (i) => newPeriodicConstraint('radius', i, i, [], 0, 0, 1, pc.nFree));
+  if (radius) out.push(radius);
+  return out;
+}
+
+/** The tightest radius limit t·w_i <= R_i (the others are implied), when within opt.margin; null otherwise. */
+function radiusLimit<C extends Constraint>(
+  R: ArrayLike<number>, opt: { t: number; margin: number; w: readonly number[] }, make: (ring: number) => C,
+): C | null {
+  let best = -1, lim = Infinity;
+  for (let i = 0; i < opt.w.length; i++) {
+    const v = R[i]! / opt.w[i]!;
+    if (v < lim) {
+      lim = v;
+      best = i;
+    }
+  }
+  if (!(best >= 0 && lim - opt.t <= opt.margin)) return null;
+  const con = make(best);
+  con.g = lim;
+  return con;
 }
 
 /** Distance of point p from the axis of ring j. */
@@ -104,7 +131,7 @@ function axisDistance(posed: Posed, j: number, p: ArrayLike<number>): number {
  * touches along a continuum exactly when all its samples are active. Such a pair keeps those samples and
  * drops its struts, whose tracking is ill-conditioned there; every other pair keeps its struts only.
  */
-export function activeSet(cons: readonly Constraint[], t: number, tol: number): Constraint[] {
+export function activeSet<C extends Constraint>(cons: readonly C[], t: number, tol: number): C[] {
   const active = cons.filter((k) => k.g - k.c * t <= tol);
   const perSide = new Map<string, number>();
   for (const k of active) {

@@ -1,17 +1,23 @@
-// The constraints of the local models: h = g(poses) - c·t >= 0.
+// The constraints of the local models, on either chart: h = g(poses) - c·t >= 0.
 //  strut     a local closest pair of two core circles (both points minimised): g = |pA - pB|, c = w_a + w_b.
+//            On the periodic chart ring b may be an image of a cell ring, displaced by Σ s_k L_k (`shift`).
 //  sample    a point fixed on ring b and its nearest point on ring a: g >= the pair's true distance, so
 //            adding it never excludes a feasible arrangement; samples let the model see a continuum of
 //            contacts (tight Hopf: a whole circle touches) that a few struts would misrepresent.
 //  radius    t·w_i <= R_i:  g = R_i / w_i, c = 1.
 //  departure symmetryDeparture <= ε: g = (ε² - D²) / (2ε), c = 0 (smooth even where D = 0).
+// Struts are tracked through small pose changes by Newton in the two angles (strutTrack.ts), on both charts.
 // Gradients come from the envelope theorem: a rigid motion of ring a (velocity v, angular velocity ω about
 // its centre) changes g by u·(v + ω × (pA - cA)) with u = (pA - pB)/|pA - pB|, and the same with the
-// opposite sign for ring b — whether a point is minimised or fixed on its ring.
+// opposite sign for ring b — whether a point is minimised or fixed on its ring. The charts differ only in
+// where that motion goes: the ring chart (chart.ts addRingGradient) or, for an image, also the lattice
+// vectors L_k with weight s_k (periodicChart.ts addImageGradient).
 import type { Vec3 } from '../../model/types.js';
 import { closestPointOnCircle } from '../../kernel/index.js';
 import { departureResidual, type RingOrbits } from '../../model/symmetry.js';
 import { addRingGradient, ringsOf, type Chart, type Posed } from '../chart/chart.js';
+import { addImageGradient, latticeVectors, toFree, type PeriodicChart, type PeriodicPosed } from '../chart/periodicChart.js';
+import { latticeOffset } from '../../model/periodic.js';
 import { trackStrut } from './strutTrack.js';
 
 export type ConstraintKind = 'strut' | 'sample' | 'radius' | 'departure';
@@ -39,6 +45,11 @@ export interface Constraint {
   continuum: boolean;
 }
 
+/** A constraint of the periodic chart; `b` is the cell index of the imaged ring, at lattice shift `shift`. */
+export interface PeriodicConstraint extends Constraint {
+  shift: number[];
+}
+
 export interface DepartureSpec {
   orbits: RingOrbits;
   epsilon: number;
@@ -64,8 +75,7 @@ export function evaluate(
 
 /** Point at material angle θ on ring j. */
 export function pointOn(posed: Posed, j: number, th: number, out: Float64Array | number[]): void {
-  const c = Math.cos(th), s = Math.sin(th), R = posed.R[j]!, o = 3 * j;
-  for (let k = 0; k < 3; k++) out[k] = posed.c[o + k]! + R * (c * posed.e1[o + k]! + s * posed.e2[o + k]!);
+  pointAt(posed.c, 3 * j, posed.e1, posed.e2, 3 * j, posed.R[j]!, th, out);
 }
 
 /**
@@ -89,28 +99,81 @@ export function newConstraint(
   return { kind, a, b, ta, tb, c, g: NaN, grad: new Float64Array(nFree), pa: [0, 0, 0], pb: [0, 0, 0], continuum };
 }
 
+export function newPeriodicConstraint(
+  kind: 'strut' | 'radius', a: number, b: number, shift: number[], ta: number, tb: number, c: number, nFree: number, continuum = false,
+): PeriodicConstraint {
+  return { kind, a, b, shift, ta, tb, c, g: NaN, grad: new Float64Array(nFree), pa: [0, 0, 0], pb: [0, 0, 0], continuum };
+}
+
+/**
+ * Re-evaluate a constraint of the periodic chart at `pp` (value returned; gradient in free coordinates into
+ * con.grad when `withGrad`; tracked angles and points stored when `keep`). NaN when the strut was lost.
+ */
+export function evaluatePeriodic(con: PeriodicConstraint, pc: PeriodicChart, pp: PeriodicPosed, withGrad: boolean, keep = true): number {
+  if (withGrad) con.grad.fill(0);
+  if (con.kind !== 'strut') return con.g;
+  const { posed } = pp;
+  const a = con.a, b = con.b;
+  const off = latticeOffset(latticeVectors(pp), con.shift);
+  const cb: Vec3 = [posed.c[3 * b]! + off[0], posed.c[3 * b + 1]! + off[1], posed.c[3 * b + 2]! + off[2]];
+  const ca: Vec3 = [posed.c[3 * a]!, posed.c[3 * a + 1]!, posed.c[3 * a + 2]!];
+  const d = trackedStrut(con, posed.e1, posed.e2, posed.R, ca, 0, cb, 0, keep);
+  if (withGrad && d > 0) {
+    contactMoments(ca, 0, cb, 0, d);
+    const full = new Float64Array(pc.nFull);
+    addImageGradient(pc, pp, a, null, U, WA, 1, full);
+    addImageGradient(pc, pp, b, con.shift, U, WB, -1, full);
+    toFree(pc, full, con.grad);
+  }
+  return d;
+}
+
 // --- helpers ---
 
+/** The points of the last strut or sample evaluated, and its direction u and moments (ra × u, rb × u). */
 const PA = new Float64Array(3), PB = new Float64Array(3);
+const U = new Float64Array(3), WA = new Float64Array(3), WB = new Float64Array(3);
 
 function pairValue(con: Constraint, chart: Chart, posed: Posed, withGrad: boolean, strut: boolean, keep: boolean): number {
   const a = con.a, b = con.b;
-  let ta = con.ta, tb = con.tb;
-  if (strut) {
-    const r = trackStrut(posed.e1, posed.e2, posed.c, 3 * a, 3 * a, posed.R[a]!, posed.c, 3 * b, 3 * b, posed.R[b]!, ta, tb);
-    if (r === null) return NaN;
-    ta = r[0];
-    tb = r[1];
-    pointOn(posed, a, ta, PA);
-    pointOn(posed, b, tb, PB);
-  } else {
-    pointOn(posed, b, tb, PB);
-    const o = 3 * a;
-    closestPointOnCircle(PB, posed.c.subarray(o, o + 3), posed.n.subarray(o, o + 3), posed.R[a]!, PA);
-    ta = angleOf(posed, a, PA);
+  const d = strut
+    ? trackedStrut(con, posed.e1, posed.e2, posed.R, posed.c, 3 * a, posed.c, 3 * b, keep)
+    : sampleValue(con, posed, keep);
+  if (withGrad && d > 0) {
+    contactMoments(posed.c, 3 * a, posed.c, 3 * b, d);
+    addRingGradient(chart, posed, a, U, WA, 1, con.grad);
+    addRingGradient(chart, posed, b, U, WB, -1, con.grad);
   }
-  const ux0 = PA[0]! - PB[0]!, uy0 = PA[1]! - PB[1]!, uz0 = PA[2]! - PB[2]!;
-  const d = Math.hypot(ux0, uy0, uz0);
+  return d;
+}
+
+/**
+ * A strut tracked from its stored angles to the poses, ring a centred at ca[oa..], ring b (or its image) at
+ * cb[ob..], both with their frames in e1, e2; its points into PA, PB. NaN when the strut was lost.
+ */
+function trackedStrut(
+  con: Constraint, e1: Float64Array, e2: Float64Array, R: Float64Array, ca: ArrayLike<number>, oa: number,
+  cb: ArrayLike<number>, ob: number, keep: boolean,
+): number {
+  const a = con.a, b = con.b;
+  const r = trackStrut(e1, e2, ca, oa, 3 * a, R[a]!, cb, ob, 3 * b, R[b]!, con.ta, con.tb);
+  if (r === null) return NaN;
+  pointAt(ca, oa, e1, e2, 3 * a, R[a]!, r[0], PA);
+  pointAt(cb, ob, e1, e2, 3 * b, R[b]!, r[1], PB);
+  return stored(con, r[0], r[1], keep);
+}
+
+/** A sample: the point at con.tb on ring b and its nearest point on ring a; the points into PA, PB. */
+function sampleValue(con: Constraint, posed: Posed, keep: boolean): number {
+  const a = con.a, o = 3 * a;
+  pointOn(posed, con.b, con.tb, PB);
+  closestPointOnCircle(PB, posed.c.subarray(o, o + 3), posed.n.subarray(o, o + 3), posed.R[a]!, PA);
+  return stored(con, angleOf(posed, a, PA), con.tb, keep);
+}
+
+/** |PA - PB|, with the angles and points stored in `con` when `keep`. */
+function stored(con: Constraint, ta: number, tb: number, keep: boolean): number {
+  const d = Math.hypot(PA[0]! - PB[0]!, PA[1]! - PB[1]!, PA[2]! - PB[2]!);
   if (keep) {
     con.ta = ta;
     con.tb = tb;
@@ -118,14 +181,29 @@ function pairValue(con: Constraint, chart: Chart, posed: Posed, withGrad: boolea
     con.pa = [PA[0]!, PA[1]!, PA[2]!];
     con.pb = [PB[0]!, PB[1]!, PB[2]!];
   }
-  if (withGrad && d > 0) {
-    const u: Vec3 = [ux0 / d, uy0 / d, uz0 / d];
-    const ra: Vec3 = [PA[0]! - posed.c[3 * a]!, PA[1]! - posed.c[3 * a + 1]!, PA[2]! - posed.c[3 * a + 2]!];
-    const rb: Vec3 = [PB[0]! - posed.c[3 * b]!, PB[1]! - posed.c[3 * b + 1]!, PB[2]! - posed.c[3 * b + 2]!];
-    addRingGradient(chart, posed, a, u, cross(ra, u), 1, con.grad);
-    addRingGradient(chart, posed, b, u, cross(rb, u), -1, con.grad);
-  }
   return d;
+}
+
+/** u = (PA - PB)/d into U, and the moments (PA - cA) × u into WA, (PB - cB) × u into WB. */
+function contactMoments(ca: ArrayLike<number>, oa: number, cb: ArrayLike<number>, ob: number, d: number): void {
+  for (let k = 0; k < 3; k++) U[k] = (PA[k]! - PB[k]!) / d;
+  momentInto(PA, ca, oa, WA);
+  momentInto(PB, cb, ob, WB);
+}
+
+function momentInto(p: Float64Array, c: ArrayLike<number>, o: number, out: Float64Array): void {
+  const rx = p[0]! - c[o]!, ry = p[1]! - c[o + 1]!, rz = p[2]! - c[o + 2]!;
+  out[0] = ry * U[2]! - rz * U[1]!;
+  out[1] = rz * U[0]! - rx * U[2]!;
+  out[2] = rx * U[1]! - ry * U[0]!;
+}
+
+/** Point at material angle θ on a ring centred at c[oc..] with its frame at e1[o..], e2[o..]. */
+function pointAt(
+  c: ArrayLike<number>, oc: number, e1: Float64Array, e2: Float64Array, o: number, R: number, th: number, out: Float64Array | number[],
+): void {
+  const cs = Math.cos(th), sn = Math.sin(th);
+  for (let k = 0; k < 3; k++) out[k] = c[oc + k]! + R * (cs * e1[o + k]! + sn * e2[o + k]!);
 }
 
 function departureValue(con: Constraint, chart: Chart, posed: Posed, withGrad: boolean, dep: DepartureSpec): number {

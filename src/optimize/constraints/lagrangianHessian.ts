@@ -26,9 +26,8 @@
 // rings) are not covered: the caller then falls back to differences.
 import { closestPointOnCircle } from '../../kernel/index.js';
 import type { Chart, Posed } from '../chart/chart.js';
-import { pointOn, type Constraint } from './constraints.js';
+import { pointOn, type Constraint, type PeriodicConstraint } from './constraints.js';
 import type { PeriodicChart, PeriodicPosed } from '../chart/periodicChart.js';
-import type { PeriodicConstraint } from './periodicConstraints.js';
 import { strutHessian } from './strutHessian.js';
 import { trackStrut } from './strutTrack.js';
 

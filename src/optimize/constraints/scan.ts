@@ -12,6 +12,8 @@ import type { RingOrbits } from '../../model/symmetry.js';
 import type { Lattice, Ring, Vec3 } from '../../model/types.js';
 import { linkingNumberRaw } from '../../topology/linking.js';
 import type { Posed } from '../chart/chart.js';
+import { latticeVectors, type PeriodicPosed } from '../chart/periodicChart.js';
+import { latticeOffset } from '../../model/periodic.js';
 import { angleOf } from './constraints.js';
 
 /** Pairs whose bounding spheres are this many smallest core radii beyond touching distance are not scanned. */
@@ -34,6 +36,17 @@ export interface PairScan {
   distance: number;
   contacts: PairContact[];
   continuum: ContinuumKind | null;
+}
+
+/** A pair of the periodic chart: cell ring a and the image of cell ring b at lattice shift `shift`. */
+export interface PeriodicPair {
+  a: number;
+  b: number;
+  shift: number[];
+}
+
+export interface PeriodicScan extends PairScan {
+  shift: number[];
 }
 
 const OUT = new Float64Array(MAX_CONTACTS * CONTACT_STRIDE);
@@ -123,7 +136,7 @@ export function linkingHolds(rings: readonly Ring[], linking: readonly (readonly
  */
 export function periodicNearPairs(
   rings: readonly Ring[], lattice: Lattice, margin: number, maxReach: number,
-): { a: number; b: number; shift: number[] }[] | null {
+): PeriodicPair[] | null {
   const n = rings.length;
   const vectors = lattice.vectors;
   const reach = latticeReach({ rings: rings as Ring[], lattice }, margin);
@@ -162,6 +175,15 @@ export function periodicNearPairs(
     const j = key % n, rest = (key - j) / n, p = rest % n, blk = (rest - p) / n;
     return { a: p, b: j, shift: blk === 0 ? zero.slice() : shifts[blk - 1]!.slice() };
   });
+}
+
+/** Every strut of every listed pair of the periodic chart, by the kernel. */
+export function scanPeriodic(pp: PeriodicPosed, pairs: readonly PeriodicPair[], w: readonly number[]): PeriodicScan[] {
+  const { posed } = pp;
+  const vectors = latticeVectors(pp);
+  return pairs.map((p) => ({
+    a: p.a, b: p.b, shift: p.shift.slice(), c: w[p.a]! + w[p.b]!, ...pairContacts(posed, p.a, p.b, latticeOffset(vectors, p.shift)),
+  }));
 }
 
 /**

@@ -1,6 +1,6 @@
 // Tracking a strut (a local closest pair of two core circles) through a small change of pose: Newton in
-// the pair's two material angles on ½|pA(θ) - pB(φ)|². Shared by the free-ring model (constraints.ts) and
-// the periodic one (periodicConstraints.ts), where ring b is an image of a cell ring displaced by a
+// the pair's two material angles on ½|pA(θ) - pB(φ)|². Shared by the ring chart and
+// the periodic one (both in constraints.ts), where ring b is an image of a cell ring displaced by a
 // lattice offset; both pass the stacked material frames and the (possibly displaced) centres separately.
 
 /** Newton on the pair angles stops when the step is below this (radians). */

@@ -1,34 +1,34 @@
 // Inflate a periodic arrangement (a weave): maximise the common tube over the cell's ring poses and the
-// lattice vectors (periodicProblem.ts). The outer trust-region loop is that of solve.ts (outerLoop.ts) on a
+// lattice vectors (problem.ts PeriodicProblem). The outer trust-region loop is that of solve.ts (outerLoop.ts) on a
 // periodic chart: at the current arrangement the kernel finds every strut between a cell ring and every
 // image within reach; the struts are linearised (images chained to their ring and to the lattice vectors)
 // and the proximal QP of localStep.ts proposes a step (HiGHS bounded in time), judged on the exact kernel
 // (true tube, linked pairs unchanged). Once the predicted gain is small, Newton on the KKT system
-// (periodicPolish.ts) finishes; non-negative strut forces (certificate.ts) show a Kuhn–Tucker point and the
-// curvature of the Lagrangian along the contacts (secondOrder.ts, on the periodic chart) tells a maximum
-// from a saddle. At a saddle the loop steps off along the ascent direction, lattice vectors included
-// (saddleEscape.ts), and climbs again, as the ring solver does; a saddle it ends on is reported, not
-// certified.
+// (polish.ts, the periodic settings) finishes; non-negative strut forces (certificate.ts) show a Kuhn–Tucker
+// point and the curvature of the Lagrangian along the contacts (secondOrder.ts, on the periodic chart) tells
+// a maximum from a saddle. At a saddle the loop steps off along the ascent direction, lattice vectors
+// included (saddleEscape.ts), and climbs again, as the ring solver does; a saddle it ends on is reported,
+// not certified. The polish and the assessment are those of every chart (solveOnChart.ts); this file sets
+// up the periodic problem and hands over the periodic chart with what differs on it (weaveSolve).
 import { InputError } from '../../model/errors.js';
 import { periodicLinks, sameLinks } from '../../model/periodic.js';
 import { MAX_LATTICE_REACH } from '../../model/ringPairs.js';
 import type { Lattice, Ring } from '../../model/types.js';
-import { certify, CURVATURE_TOL } from '../certify/certificate.js';
+import type { certify } from '../certify/certificate.js';
 import { layoutFrame, optionsIn, periodicOutcomeOut, periodicProblemIn } from '../chart/layoutFrame.js';
 import { readySolvers, type InnerAlgorithm } from '../step/localStep.js';
-import { bindingContacts, runOuterLoop, type Assessed, type LoopChart, type Polished } from '../step/outerLoop.js';
+import { runOuterLoop, type Assessed } from '../step/outerLoop.js';
 import { seededRandom } from '../chart/perturb.js';
 import { buildPeriodicChart, periodicPosedAt, stateOf, type PeriodicChart, type PeriodicPosed } from '../chart/periodicChart.js';
-import {
-  evaluatePeriodic, newPeriodicConstraint, scanPeriodic, type PeriodicConstraint, type PeriodicPair, type PeriodicScan,
-} from '../constraints/periodicConstraints.js';
-import { periodicKktModel, polishPeriodic } from '../certify/periodicPolish.js';
-import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './periodicProblem.js';
+import type { PeriodicConstraint } from '../constraints/constraints.js';
+import { collectPeriodicConstraints } from '../constraints/collect.js';
+import { PERIODIC_POLISH, periodicKktModel } from '../certify/polish.js';
+import { assessOnChart, polishOnChart, type ChartSolve, type SolveChart } from './solveOnChart.js';
+import type { PeriodicContact, PeriodicOutcome, PeriodicProblem } from './problem.js';
 import type { SolveOptions } from './problem.js';
-import { maxViolation, periodicNearPairs, scanMargin, trueTube } from '../constraints/scan.js';
-import { criticalCurvature } from '../certify/secondOrder.js';
+import { maxViolation, periodicNearPairs, scanMargin, scanPeriodic, trueTube, type PeriodicPair, type PeriodicScan } from '../constraints/scan.js';
 import {
-  ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
+  ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, copyRing, noCertificate, withTubes,
 } from '../step/trustRegion.js';
 
 export async function solvePeriodic(problem: PeriodicProblem, options: SolveOptions): Promise<PeriodicOutcome> {
@@ -65,8 +65,8 @@ async function solveInFrame(problem: PeriodicProblem, options: SolveOptions): Pr
     escapeSizes: ESCAPE_STEPS_REL,
     chart: (s) => periodicLoopChart(s, ctx),
     admissible: (s) => sameLinks(ctx.links, periodicLinks(s.rings, s.lattice)),
-    polish: (s) => tryPolish(s, ctx),
-    assess: (s, p) => assess(s, ctx, p),
+    polish: (s) => polishOnChart(s, weaveSolve(ctx)),
+    assess: (s, p) => assessOnChart(s, weaveSolve(ctx), p),
   });
   const fin = run.fin.state;
   return {
@@ -100,7 +100,7 @@ interface Final extends Assessed<State, PeriodicConstraint> {
 }
 
 /** The periodic chart at the arrangement, for the outer loop. */
-function periodicLoopChart(state: State, ctx: Ctx): LoopChart<State, PeriodicConstraint, PeriodicPosed> {
+function periodicLoopChart(state: State, ctx: Ctx): SolveChart<State, PeriodicConstraint, PeriodicPosed> {
   const pc = buildPeriodicChart(state.rings, state.lattice);
   return {
     nFree: pc.nFree,
@@ -128,87 +128,24 @@ function stateAt(rings: Ring[], lattice: Lattice, ctx: Ctx): State {
 /** Struts within `margin` (layout units) of touching, with gradients, and the radius limit. */
 function collect(pc: PeriodicChart, state: State, ctx: Ctx, margin: number): PeriodicConstraint[] {
   const pp = periodicPosedAt(pc, new Float64Array(pc.nFree));
-  const out: PeriodicConstraint[] = [];
-  for (const s of state.scans) {
-    if (s.distance - state.t * s.c > margin) continue;
-    for (const k of s.contacts) {
-      if (k.d - state.t * s.c > margin) continue;
-      const con = newPeriodicConstraint('strut', s.a, s.b, s.shift, k.ta, k.tb, s.c, pc.nFree, s.continuum !== null);
-      if (Number.isFinite(evaluatePeriodic(con, pc, pp, true))) out.push(con);
-    }
-  }
-  let best = -1, lim = Infinity;
-  ctx.w.forEach((wi, i) => {
-    if (ctx.R[i]! / wi < lim) {
-      lim = ctx.R[i]! / wi;
-      best = i;
-    }
-  });
-  if (best >= 0 && lim - state.t <= margin) {
-    const con = newPeriodicConstraint('radius', best, best, [], 0, 0, 1, pc.nFree);
-    con.g = lim;
-    out.push(con);
-  }
-  return out;
-}
-
-/** Newton on the active set for each candidate threshold; accepted only if the kernel agrees. */
-function tryPolish(state: State, ctx: Ctx): Polished<State> | null {
-  const pc = buildPeriodicChart(state.rings, state.lattice);
-  const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * state.t);
-  let lastSet = '';
-  for (const tol of ACTIVE_TOLS) {
-    const active = all.filter((k) => k.g - k.c * state.t <= tol * state.t);
-    const key = active.map((k) => `${k.kind}${k.a}/${k.b}/${k.shift.join(',')}/${k.tb.toFixed(6)}`).join(';');
-    if (active.length === 0 || key === lastSet) continue;
-    lastSet = key;
-    const lambda0 = certify({ active, nFree: pc.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false }).lambda;
-    const r = polishPeriodic(pc, active, state.t, lambda0, ctx.scale);
-    if (!r.ok) continue;
-    const trial = stateOf(pc, periodicPosedAt(pc, r.z));
-    const next = stateAt(trial.rings, trial.lattice, ctx);
-    if (!(next.t >= state.t * (1 - POLISH_LOSS_REL)) || !(next.t >= r.t * (1 - 1e-9))) continue;
-    if (!sameLinks(ctx.links, periodicLinks(next.rings, next.lattice))) continue;
-    return { state: next, activeTol: tol, message: r.message };
-  }
-  return null;
+  return collectPeriodicConstraints(pc, pp, state.scans, { t: state.t, margin, w: ctx.w });
 }
 
 /**
- * Certificate (first and second order) at the arrangement: the first active set whose forces balance, with
- * the curvature of the Lagrangian there; a saddle ends the search with its ascent direction. When no set
- * balances, a nearly balanced one with an ascent direction still shows the loop the way off.
+ * The periodic chart for the shared polish and assessment (solveOnChart.ts): every step of the polish by
+ * the SVD, curvature on copies, certified only with a second-order test, and at a saddle an escape is
+ * taken only where the forces balance (else kept as the way off while thresholds are tried).
  */
-function assess(state: State, ctx: Ctx, polished: Polished<State> | null): Final {
-  const pc = buildPeriodicChart(state.rings, state.lattice);
-  const t = state.t;
-  const all = collect(pc, state, ctx, ACTIVE_TOLS.at(-1)! * t);
-  const base = { nFree: pc.nFree, maxViolation: maxViolation(state.scans, t), activeTolLimit: Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!), polished: polished !== null };
-  const polishMessage = polished?.message ?? null;
-  let first: Final | null = null;
-  // A near-balanced set with an ascent direction: the way off when no set balances (an unpolished saddle).
-  let way: Final | null = null;
-  for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
-    const active = all.filter((k) => k.g - k.c * t <= tol * t);
-    if (active.length === 0) continue;
-    const firstOrder = certify({ ...base, active, activeTol: tol });
-    // Near a saddle the balance is only approximate; the curvature still shows the way out.
-    if (!firstOrder.certificate.certified && !(firstOrder.certificate.balanceResidual <= ESCAPE_BALANCE_TOL)) {
-      first ??= { state, ...withShifts(firstOrder, active), escape: null, binding: [], polishMessage };
-      continue;
-    }
-    // On copies: differencing re-tracks the struts, and the reported forces stay those of the balance above.
-    const model = periodicKktModel(pc);
-    const curv = criticalCurvature(model, active.map((k) => model.copy(k)), firstOrder.lambda, ctx.scale);
-    const curvature = curv?.maxCurvature ?? null;
-    const cert = certify({ ...base, active, activeTol: tol, curvature, requireSecondOrder: true, saddleAdvice: saddleAdvice(ctx.maxEscapes) });
-    const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
-    const out: Final = { state, ...withShifts(cert, active), escape, binding: bindingContacts(active, firstOrder.lambda), polishMessage };
-    if (cert.certificate.certified || (firstOrder.certificate.certified && escape !== null)) return out;
-    if (escape !== null) way ??= out;
-    first ??= out;
-  }
-  return way ?? first ?? { state, cert: certify({ ...base, active: [], activeTol: 1 }), contacts: [], escape: null, binding: [], polishMessage };
+function weaveSolve(ctx: Ctx): ChartSolve<State, PeriodicConstraint, PeriodicPosed, Final> {
+  return {
+    scale: ctx.scale, finalTol: ctx.finalTol,
+    chart: (s) => periodicLoopChart(s, ctx),
+    admissible: (s) => sameLinks(ctx.links, periodicLinks(s.rings, s.lattice)),
+    maxViolation: (s) => maxViolation(s.scans, s.t),
+    polishSettings: PERIODIC_POLISH, maxPolishFree: Infinity,
+    curvatureOnCopies: true, secondOrder: { requireSecondOrder: true, saddleAdvice: saddleAdvice(ctx.maxEscapes) }, escapeNeedsBalance: true,
+    extend: (a, active) => ({ ...a, ...withShifts(a.cert, active) }),
+  };
 }
 
 /** What a weave saddle's note adds when the solve ends on one. */

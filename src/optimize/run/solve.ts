@@ -12,25 +12,25 @@
 // (secondOrder.ts) tells a maximum from a saddle: a symmetric arrangement is often a saddle among all
 // arrangements, and the loop steps off it along the ascent direction (saddleEscape.ts, at most MAX_ESCAPES
 // times unless options.maxEscapes says otherwise) and climbs on.
+// The polish and the assessment are those of every chart (solveOnChart.ts); this file sets up the ring
+// problem (symmetry imposed or departure bounded, the start) and hands over the ring chart.
 import { InputError } from '../../model/errors.js';
 import { departureResidual, ringOrbits, symmetrize, trivialOrbits, type RingOrbits } from '../../model/symmetry.js';
 import type { Ring, Symmetry } from '../../model/types.js';
 import { buildChart, posedAt, ringsOf, type Chart, type GaugeGroup, type Posed } from '../chart/chart.js';
-import { activeSet, collectConstraints } from '../constraints/collect.js';
+import { collectConstraints } from '../constraints/collect.js';
 import { inflateOutcomeOut, inflateProblemIn, layoutFrame, optionsIn } from '../chart/layoutFrame.js';
-import { certify, CURVATURE_TOL } from '../certify/certificate.js';
 import type { Constraint, DepartureSpec } from '../constraints/constraints.js';
 import { readySolvers, type InnerAlgorithm } from '../step/localStep.js';
-import { bindingContacts, CREEP_STOP, runOuterLoop, type Assessed, type LoopChart, type Polished, type StepForces } from '../step/outerLoop.js';
-import { carryMultipliers } from '../step/sqpStep.js';
+import { CREEP_STOP, runOuterLoop, type Assessed, type Polished, type StepForces } from '../step/outerLoop.js';
 import { perturbRings } from '../chart/perturb.js';
-import { polish, ringKktModel } from '../certify/polish.js';
+import { RING_POLISH, ringKktModel } from '../certify/polish.js';
 import { packingBound } from '../certify/bound.js';
-import { criticalCurvature } from '../certify/secondOrder.js';
 import type { InflateProblem, SolveOptions, SolveOutcome } from './problem.js';
+import { assessOnChart, polishOnChart, type ChartSolve, type SolveChart } from './solveOnChart.js';
 import { linkingHolds, maxViolation, pairPlan, radiusLimit, scanPairs, trueTube, type PairPlan, type PairScan } from '../constraints/scan.js';
 import {
-  ACTIVE_TOLS, ESCAPE_BALANCE_TOL, ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, POLISH_LOSS_REL, copyRing, noCertificate, withTubes,
+  ESCAPE_STEPS_REL, MAX_ESCAPES, PERTURB_RETRIES, copyRing, noCertificate, withTubes,
 } from '../step/trustRegion.js';
 
 /**
@@ -101,8 +101,8 @@ async function solveInFrame(problem: InflateProblem, options: SolveOptions): Pro
     escapeSizes: dep ? [0.25 * dep.epsilon / scale, ...ESCAPE_STEPS_REL] : ESCAPE_STEPS_REL,
     chart: (s: RingState) => ringLoopChart(s, ctx),
     admissible: (s: RingState) => withinDeparture(s.rings, dep) && sameLinking(s.rings, problem.linking),
-    polish: (s: RingState) => tryPolish(s, ctx),
-    assess: (s: RingState, p: Polished<RingState> | null, f?: StepForces | null) => assess(s, ctx, p, f ?? null),
+    polish: (s: RingState) => polishOnChart(s, ringSolve(ctx)),
+    assess: (s: RingState, p: Polished<RingState> | null, f?: StepForces | null) => assessOnChart(s, ringSolve(ctx), p, f ?? null),
   };
   let run = await runOuterLoop(state, loopOptions);
   // Creeping near the packing bound (a degenerate maximiser): climb again from perturbations of the best
@@ -201,7 +201,7 @@ interface Context {
 }
 
 /** The ring chart at the poses, for the outer loop (gauge-free, symmetry imposed). */
-function ringLoopChart(state: RingState, ctx: Context): LoopChart<RingState, Constraint, Posed> {
+function ringLoopChart(state: RingState, ctx: Context): SolveChart<RingState, Constraint, Posed> {
   const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
   return {
     nFree: chart.nFree,
@@ -218,67 +218,16 @@ function ringLoopChart(state: RingState, ctx: Context): LoopChart<RingState, Con
   };
 }
 
-/** Newton on the active set, for each candidate threshold in turn; accepted only if the kernel agrees. */
-function tryPolish(state: RingState, ctx: Context): Polished<RingState> | null {
-  const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
-  if (chart.nFree > DENSE_POLISH_MAX_FREE) return null;
-  const posed = posedAt(chart, new Float64Array(chart.nFree));
-  const all = collectConstraints(chart, posed, state.scans, { t: state.t, margin: ACTIVE_TOLS.at(-1)! * state.t, w: ctx.w, dep: ctx.dep, samples: true });
-  let lastSet = '';
-  for (const tol of ACTIVE_TOLS) {
-    const active = activeSet(all, state.t, tol * state.t);
-    const key = active.map((k) => `${k.kind}${k.a}/${k.b}/${k.tb.toFixed(6)}`).join(',');
-    if (active.length === 0 || key === lastSet) continue;
-    lastSet = key;
-    const lambda0 = certify({ active, nFree: chart.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false }).lambda;
-    const r = polish(chart, active, state.t, lambda0, ctx.scale, ctx.dep);
-    if (!r.ok) continue;
-    const rings = ringsOf(chart, posedAt(chart, r.z));
-    const scans = scanPairs(posedOf(rings, ctx.orbits), ctx.pairs, ctx.w);
-    const t = trueTube(scans, radii(rings), ctx.w);
-    if (!(t >= state.t * (1 - POLISH_LOSS_REL)) || !(t >= r.t * (1 - 1e-9))) continue;
-    if (!sameLinking(rings, ctx.linking) || !withinDeparture(rings, ctx.dep)) continue;
-    return { state: { rings, scans, t }, activeTol: tol, message: r.message };
-  }
-  return null;
-}
-
-/** Certificate (first and second order) at the current poses. */
-function assess(state: RingState, ctx: Context, polished: Polished<RingState> | null, forces: StepForces | null): Final {
-  const chart = buildChart(state.rings, ctx.orbits, ctx.gauge);
-  const posed = posedAt(chart, new Float64Array(chart.nFree));
-  const t = state.t;
-  const all = collectConstraints(chart, posed, state.scans, { t, margin: ACTIVE_TOLS.at(-1)! * t, w: ctx.w, dep: ctx.dep, samples: true });
-  const limit = Math.max(10 * ctx.finalTol, ACTIVE_TOLS[1]!);
-  const violation = maxViolation(state.scans, t);
-  const base = { nFree: chart.nFree, maxViolation: violation, activeTolLimit: limit, polished: polished !== null };
-  let out: Final | null = null;
-  for (const tol of polished ? [polished.activeTol, ...ACTIVE_TOLS] : ACTIVE_TOLS) {
-    const active = activeSet(all, t, tol * t);
-    if (active.length === 0) continue;
-    const hint = forces ? carryMultipliers(forces.cons, forces.lambda, active) : null;
-    const first = certify({ ...base, active, activeTol: tol, hint });
-    // Near a saddle the balance is only approximate; the curvature still shows the way out.
-    if (!first.certificate.certified && !(first.certificate.balanceResidual <= ESCAPE_BALANCE_TOL)) {
-      out ??= { state, cert: first, escape: null, binding: [], polishMessage: polished?.message ?? null };
-      continue;
-    }
-    // Samples bound a contact arc from above, so curvature computed with them can be spurious: skip it there.
-    const curv = active.some((k) => k.kind === 'sample') ? null : criticalCurvature(ringKktModel(chart, ctx.dep), active, first.lambda, ctx.scale);
-    const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null, hint: first.lambda });
-    const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
-    const binding = bindingContacts(active, first.lambda);
-    const candidate: Final = { state, cert, escape, binding, polishMessage: polished?.message ?? null };
-    if (cert.certificate.certified || escape !== null) {
-      out = candidate;
-      break;
-    }
-    out ??= candidate;
-  }
-  return out ?? {
-    state,
-    cert: certify({ ...base, active: [], activeTol: 1 }),
-    escape: null, binding: [], polishMessage: polished?.message ?? null,
+/** The ring chart for the shared polish and assessment (solveOnChart.ts). */
+function ringSolve(ctx: Context): ChartSolve<RingState, Constraint, Posed, Final> {
+  return {
+    scale: ctx.scale, finalTol: ctx.finalTol,
+    chart: (s) => ringLoopChart(s, ctx),
+    admissible: (s) => sameLinking(s.rings, ctx.linking) && withinDeparture(s.rings, ctx.dep),
+    maxViolation: (s) => maxViolation(s.scans, s.t),
+    polishSettings: RING_POLISH, maxPolishFree: DENSE_POLISH_MAX_FREE,
+    curvatureOnCopies: false, secondOrder: {}, escapeNeedsBalance: false,
+    extend: (a) => a,
   };
 }
 
