@@ -6,7 +6,7 @@
 // positive eigenvalue means a saddle: a symmetric arrangement is often a maximum among symmetric ones but a
 // saddle among all, and the eigenvector is the way out. W is the Hessian block of the KKT Jacobian of the
 // Newton polish (kktNewton.ts), so any KktModel is tested alike: the free rings (polish.ts ringKktModel)
-// and the weaves, whose chart adds the lattice vectors (periodicPolish.ts periodicKktModel).
+// and the weaves, whose chart adds the lattice vectors (polish.ts periodicKktModel).
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { Constraint } from '../constraints/constraints.js';
 import { kktJacobianOf, type KktModel } from './kktNewton.js';
