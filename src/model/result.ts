@@ -31,7 +31,11 @@ export interface ResultContact {
 }
 
 export interface Certificate {
-  /** 'kkt-nnls': strut forces by non-negative least squares on the balance equations. */
+  /**
+   * 'kkt-nnls': non-negative strut forces that balance the objective (the solver's last-step multipliers
+   * checked first, else non-negative least squares); 'packing-bound': the tube equals the proven packing
+   * bound, a global maximum whatever the force balance (certify/bound.ts).
+   */
   method: string;
   /** Residual of the balance equations divided by the largest force term (dimensionless). */
   balanceResidual: number;

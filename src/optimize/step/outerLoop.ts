@@ -12,7 +12,10 @@
 // certificate and second-order test, secondOrder.ts) tells a maximum from a saddle. At a saddle the loop
 // steps off along the ascent direction keeping the binding contacts (saddleEscape.ts) and climbs again, at
 // most maxEscapes times; a symmetric arrangement is often a maximum among symmetric ones but a saddle among
-// all. The best polished point is reported unless the loop ended higher without one.
+// all (the loop looks for a saddle only once the SQP model promises no more gain). The best polished point
+// is reported unless the loop ended higher without one. A tube equal to a proven upper bound (the packing
+// bound) ends the loop at once and is certified by the bound; the last step's multipliers are handed to the
+// assessment as candidate forces (checked there, never trusted).
 import type { CertifyOutput } from '../certify/certificate.js';
 import type { Constraint } from '../constraints/constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
