@@ -134,8 +134,9 @@ export function certify(input: CertifyInput): CertifyOutput {
   } else if (!Number.isFinite(balanceResidual)) {
     note = `Not certified: with ${nFree} variables the forces are sought only from the solver's last step, and it gave none to check.`;
   } else {
+    const whose = nFree > DENSE_NNLS_MAX_FREE ? `the forces of the solver's last step (with ${nFree} variables no least-squares search is run)` : 'the best non-negative forces';
     note =
-      `Not certified: the best non-negative forces on ${what} leave a balance residual of ` +
+      `Not certified: ${whose} on ${what} leave a balance residual of ` +
       `${balanceResidual.toExponential(1)} (needs <= ${CERT_BALANCE_TOL}); the tube may still grow.`;
   }
   return {
