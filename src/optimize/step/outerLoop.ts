@@ -133,7 +133,8 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   const history = [state.t];
   let delta = DELTA_START_REL * scale;
   let trigger = POLISH_TRIGGER_START;
-  let best: A | null = null;
+  // Typed by assertion: `judge` sets it inside a closure, which control-flow narrowing does not follow.
+  let best = null as A | null;
   let escapes = 0;
   let failures = 0;
   let stopReason = 'iteration limit';
@@ -142,6 +143,21 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   const record = (): void => {
     history.push(state.t);
     loop.onIteration?.(iterations, state.t);
+  };
+  /** Newton polish from here; the loop moves to the polished point when there is one. */
+  const polishHere = (): Polished<S> | null => {
+    const p = loop.polish(state);
+    if (p) {
+      state = p.state;
+      record();
+    }
+    return p;
+  };
+  /** Assess the current point (the last step's forces as candidates) and keep it if it is the best so far. */
+  const judge = (p: Polished<S> | null): A => {
+    const fin = loop.assess(state, p, carried);
+    if (best === null || fin.state.t >= best.state.t) best = fin;
+    return fin;
   };
   const stepOff = (fin: A): S | null =>
     escapeSaddle(loop.chart(state), fin.binding, fin.escape!, state.t, scale, loop.escapeSizes, (s) => loop.admissible(s));
@@ -160,13 +176,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     // At the bound nothing can gain: polish once (for the Kuhn–Tucker figures) and stop. A maximiser there is
     // often degenerate (a family of arrangements), where saddle escapes and more steps only spend time.
     if (loop.bound !== undefined && boundAttained(state.t, loop.bound, loop.finalTol)) {
-      const p = loop.polish(state);
-      if (p) {
-        state = p.state;
-        record();
-      }
-      const fin = loop.assess(state, p, carried);
-      if (best === null || fin.state.t >= best.state.t) best = fin;
+      judge(polishHere());
       stopReason = 'packing bound reached';
       break;
     }
@@ -206,12 +216,9 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     const promised = loop.stepMethod === 'sqp' ? predicted * Math.max(1, scale / Math.min(delta, box)) : predicted;
     if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
       // The local model promises little more: finish by Newton, then check the second-order condition.
-      const p = loop.polish(state);
+      const p = polishHere();
       if (p) {
-        state = p.state;
-        record();
-        const fin = loop.assess(state, p, carried);
-        if (best === null || fin.state.t >= best.state.t) best = fin;
+        const fin = judge(p);
         if (fin.escape === null || escapes >= loop.maxEscapes) {
           stopReason = 'polished';
           break;
