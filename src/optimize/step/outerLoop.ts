@@ -24,8 +24,8 @@ import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
 import { BOUND_METHOD, boundAttained, boundCertificate } from '../certify/bound.js';
 import type { SolveOutcome } from '../run/problem.js';
 import {
-  ACCEPT_RATIO, BOX_MAX_REL, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO, MARGIN_BOXES,
-  MAX_STEP_FAILURES, POLISH_TRIGGER_START,
+  ACCEPT_RATIO, BOX_MAX_REL, BOX_REGROW_USE, DELTA_MAX_REL, DELTA_MIN_REL, DELTA_START_REL, ESCAPE_STEPS_REL, GROW_RATIO,
+  MARGIN_BOXES, MAX_STEP_FAILURES, POLISH_TRIGGER_START, REJECT_BOX_FRACTION, REJECT_DELTA_FACTOR,
 } from './trustRegion.js';
 
 /**
@@ -140,6 +140,12 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   let stopReason = 'iteration limit';
   /** The last SQP step's constraints and multipliers, whose curvature the next step's model uses. */
   let carried: StepForces | null = null;
+  /**
+   * Cap on the step box (layout units), the SQP step's trust radius proper: Δ is a Levenberg–Marquardt
+   * weight, which once far above the model's own curvature hardly shortens the step, so a rejected step
+   * shrinks the cap to a fraction of its own length instead, and a good step that used much of it regrows it.
+   */
+  let cap = BOX_MAX_REL * scale;
   const record = (): void => {
     history.push(state.t);
     loop.onIteration?.(iterations, state.t);
@@ -181,7 +187,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       break;
     }
     const chart = loop.chart(state);
-    const box = Math.min(delta, BOX_MAX_REL * scale);
+    const box = Math.min(delta, cap);
     const cons = chart.constraints(MARGIN_BOXES * box);
     let step: { ok: boolean; z: Float64Array; tau: number };
     let sqpInput: SqpStepInput | null = null;
@@ -214,7 +220,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     // step judges stationarity by the gain the model would promise at the length scale, and steps on while
     // that is large, letting Δ grow.
     const promised = loop.stepMethod === 'sqp' ? predicted * Math.max(1, scale / Math.min(delta, box)) : predicted;
-    if (!(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale) {
+    if (!(promised > trigger * state.t) || box < DELTA_MIN_REL * scale) {
       // The local model promises little more: finish by Newton, then check the second-order condition.
       const p = polishHere();
       if (p) {
@@ -237,7 +243,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       // a gain well below the tolerance: at a degenerate optimum the gain per step is about the square of the
       // distance left, so a gain of tol·t can still leave a gap many times tol (necklaces: 8e-9 left).
       const floor = loop.stepMethod === 'sqp' ? SQP_FINAL_GAIN_REL * loop.finalTol : loop.finalTol;
-      const stalled = (): boolean => !(promised > trigger * state.t) || delta < DELTA_MIN_REL * scale;
+      const stalled = (): boolean => !(promised > trigger * state.t) || box < DELTA_MIN_REL * scale;
       // The SQP model carries the Lagrangian's curvature, so while it still promises a gain it is climbing,
       // not stuck at a saddle: the balance of an unconverged point is only approximate, and the curvature
       // the assessment reads there is no evidence of a way off. The first-order step cannot leave a saddle
@@ -256,7 +262,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       }
       while (stalled() && trigger > floor) trigger = Math.max(trigger * 0.01, floor);
       if (stalled()) {
-        stopReason = delta < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
+        stopReason = box < DELTA_MIN_REL * scale ? 'trust region collapsed' : 'converged without a polish';
         break;
       }
     }
@@ -276,9 +282,16 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
         }
       }
     }
+    const used = maxAbs(step.z);
     if (next.t > 0 && ratio >= ACCEPT_RATIO && loop.admissible(next)) {
       state = next;
-      if (ratio >= GROW_RATIO) delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
+      if (ratio >= GROW_RATIO) {
+        delta = Math.min(2 * delta, DELTA_MAX_REL * scale);
+        if (sqpInput !== null && used >= BOX_REGROW_USE * cap) cap = Math.min(2 * cap, BOX_MAX_REL * scale);
+      }
+    } else if (sqpInput !== null) {
+      cap = Math.min(cap, Math.max(REJECT_BOX_FRACTION * used, DELTA_MIN_REL * scale));
+      delta *= REJECT_DELTA_FACTOR;
     } else {
       delta *= 0.25;
     }
@@ -320,6 +333,12 @@ function creepingNearBound(history: readonly number[], bound: number, tol: numbe
   const t = history[n - 1]!, gap = bound - t;
   if (!(gap < CREEP_GAP_REL * bound) || !(gap > CREEP_MIN_GAP_TOLS * tol * bound)) return false;
   return t - history[n - 1 - CREEP_WINDOW]! < gap;
+}
+
+function maxAbs(v: ArrayLike<number>): number {
+  let a = 0;
+  for (let i = 0; i < v.length; i++) a = Math.max(a, Math.abs(v[i]!));
+  return a;
 }
 
 /** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */

@@ -8,6 +8,15 @@ import type { Ring } from '../../model/types.js';
 export const DELTA_START_REL = 0.05;
 export const DELTA_MAX_REL = 1e4;
 export const BOX_MAX_REL = 0.25;
+/**
+ * SQP step rejected: the box cap falls to this fraction of the rejected step's largest coordinate and Δ by
+ * this factor; a step with ratio >= GROW_RATIO that used at least BOX_REGROW_USE of the cap doubles it.
+ * Shrinking to a fraction of the failed step rather than of the old radius is the usual trust-region practice
+ * (from memory: Conn, Gould & Toint, Trust-Region Methods, SIAM 2000, ch. 17).
+ */
+export const REJECT_BOX_FRACTION = 0.5;
+export const REJECT_DELTA_FACTOR = 0.5;
+export const BOX_REGROW_USE = 0.5;
 /** Trust radius below which the outer loop gives up (relative to the smallest core radius). */
 export const DELTA_MIN_REL = 1e-13;
 /** Constraints within this many step boxes of touching enter the local model. */
