@@ -32,7 +32,8 @@ export function register(program: Command, io: Io): void {
     .description('Thicken the rings as far as they allow: common tube radius, poses, contacts, certificate and bound.')
     .argument('<spec|layout>', 'catalogue spec (hopf, chain:N, necklace:N, star:K, torus:N, weave:NAME; see thickring catalog) or layout JSON file (with a lattice section for a weave)')
     .option('--json', 'print one JSON object (the result file) instead of text')
-    .option('-o, --output <file>', 'write the result file (format thickring-result/1)');
+    .option('-o, --output <file>', 'write the result file (format thickring-result/1)')
+    .option('--all-starts', 'run every start, even after one attains the packing bound (a proven global maximum; by default the later starts are skipped)');
   addWeaveOptions(addSolveOptions(cmd)).action(async (arg: string, raw: Record<string, unknown>) => {
     const options = readSolveOptions(raw);
     const json = raw['json'] === true;
@@ -78,9 +79,17 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io, 
       units: layout.units ?? null,
       onProgress: progress.update,
       onIteration: progress.heartbeat,
+      stopAtBound: raw['allStarts'] !== true,
     });
   } finally {
     progress.stop();
+  }
+  const skipped = options.starts - result.starts.length;
+  if (skipped > 0) {
+    notes.push(
+      `Start ${result.starts.length - 1} attained the packing bound, a proven global maximum, so the other ${skipped} start${skipped > 1 ? 's' : ''}` +
+        ` could not do better and ${skipped > 1 ? 'were' : 'was'} skipped (--all-starts runs them all).`,
+    );
   }
   const known = resolved.catalog ? knownOptimum(resolved.catalog) : null;
   const equalRadii = layout.rings.every((r) => r.radius === layout.rings[0]!.radius);
@@ -107,6 +116,7 @@ const WEAVE_FLAGS = [
 
 /** A weave: the periodic solve (src/optimize/run/weave.ts), optionally expanded into a block of cells. */
 export async function runWeaveInflate(arg: string, options: SolveCliOptions, raw: Record<string, unknown>, io: Io, command = 'inflate'): Promise<InflateRun> {
+  if (raw['allStarts'] !== undefined) throw new InputError(`--all-starts: applies to ring links only (a weave has no packing bound to stop at); leave it out for ${arg}`);
   const repeats = raw['repeats'] === undefined ? undefined : repeatCount(raw['repeats']);
   const progress = progressReporter(io, options.starts);
   try {

@@ -90,6 +90,29 @@ describe('thickring inflate', () => {
     }
   });
 
+  it('a start that attains the packing bound ends the run; --all-starts runs every start (bound R/2: CKS 2002)', async () => {
+    // The tight Hopf link attains the packing bound R/2 (Cantarella, Kusner, Sullivan 2002), a proven global
+    // maximum: on one worker the starts after the first that attains it are not run.
+    const first = await run(['inflate', 'hopf', '--json', '--starts', '4', '--workers', '1']);
+    expect(first.code).toBe(0);
+    const r = JSON.parse(first.io.stdout[0]!) as SolveResult;
+    expect(Math.abs(r.tube - 0.5)).toBeLessThan(1e-9);
+    expect(verifyRings(r.rings, r.tube, r.linking).ok).toBe(true);
+    expect(r.starts.length).toBeLessThan(4);
+    expect(r.starts.at(-1)!.status).toBe('optimal');
+    const text = await run(['inflate', 'hopf', '--starts', '4', '--workers', '1']);
+    expect(text.io.stdout.join('\n')).toMatch(/attained the packing bound, a proven global maximum, so the other \d starts? could not do better/);
+    const all = await run(['inflate', 'hopf', '--json', '--starts', '4', '--workers', '1', '--all-starts']);
+    expect(all.code).toBe(0);
+    const every = JSON.parse(all.io.stdout[0]!) as SolveResult;
+    expect(every.starts).toHaveLength(4);
+    expect(Math.abs(every.tube - 0.5)).toBeLessThan(1e-9);
+    // A weave has no packing bound to stop at: the flag is refused, naming itself.
+    const weave = await run(['inflate', 'weave:2-in-1', '--all-starts']);
+    expect(weave.code).toBe(2);
+    expect(weave.io.stderr.join('\n')).toMatch(/--all-starts: applies to ring links only/);
+  });
+
   it('layouts that nothing holds together are refused (Freedman & Skora 1987)', async () => {
     const unlinked = join(dir, 'unlinked.json');
     writeFileSync(unlinked, JSON.stringify({
