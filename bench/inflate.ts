@@ -14,13 +14,15 @@ import { solveInflate } from '../src/optimize/run/solve.js';
 import type { InflateProblem, SolveOutcome } from '../src/optimize/run/problem.js';
 import { knownOptimum } from '../src/model/catalog.js';
 import { resolveSpec } from '../src/model/spec.js';
+import { DEFAULT_MAX_ITERATIONS } from '../src/optimize/run/startLoop.js';
 import { parseSymmetryOption } from '../src/model/symmetry.js';
 import { median } from './stats.js';
 import type { Vec3 } from '../src/model/types.js';
 
 const SEED = 20261201;
 const TOL = 1e-9;
-const MAX_ITERATIONS = 400;
+/** The solver's own default, as a user runs it. */
+const MAX_ITERATIONS = DEFAULT_MAX_ITERATIONS;
 const SINGLE_TARGET_S = 1;
 const MULTI_TARGET_S = 10;
 const MULTI_STARTS = 16;

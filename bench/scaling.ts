@@ -11,10 +11,12 @@ import { solveInflate } from '../src/optimize/run/solve.js';
 import { verifyOutcome } from '../src/optimize/run/multistart.js';
 import type { InflateProblem } from '../src/optimize/run/problem.js';
 import { resolveSpec } from '../src/model/spec.js';
+import { DEFAULT_MAX_ITERATIONS } from '../src/optimize/run/startLoop.js';
 
 const SEED = 20261201;
 const TOL = 1e-9;
-const MAX_ITERATIONS = 400;
+/** The solver's own default, as a user runs it. */
+const MAX_ITERATIONS = DEFAULT_MAX_ITERATIONS;
 
 const args = process.argv.slice(2);
 const num = (name: string, dflt: number): number => {

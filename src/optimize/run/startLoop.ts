@@ -8,7 +8,12 @@ import type { Ring, SolveStatus } from '../../model/types.js';
 import { runPool, type Algorithm, type PoolResult, type PoolTask } from './pool.js';
 import type { SolveOutcome } from './problem.js';
 
-export const DEFAULT_MAX_ITERATIONS = 400;
+/**
+ * Outer iterations per start. The time limit (--time-limit) is what bounds a run; this only stops a start
+ * that keeps stepping without end. Measured need at 1e-9: necklace:64 365, necklace:128 342, the jammed
+ * 6-ring layout of bench/data 450–570 (bench/scaling.ts, bench/inflate.ts).
+ */
+export const DEFAULT_MAX_ITERATIONS = 2000;
 export const DEFAULT_PERTURBATION = 0.05;
 /** Two tubes this close (times tol) count as equal when choosing between starts. */
 const TIE_FACTOR = 10;
