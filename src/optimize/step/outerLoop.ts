@@ -167,10 +167,14 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
   };
   const stepOff = (fin: A): S | null =>
     escapeSaddle(loop.chart(state), fin.binding, fin.escape!, state.t, scale, loop.escapeSizes, (s) => loop.admissible(s));
-  /** After an escape the trust region restarts at the escape's scale and the polish trigger at its start. */
+  /**
+   * After an escape the trust region restarts at the escape's scale (the box cap at its largest) and the polish
+   * trigger at its start.
+   */
   const restart = (off: S): void => {
     state = off;
     delta = ESCAPE_STEPS_REL[0]! * scale;
+    cap = BOX_MAX_REL * scale;
     trigger = POLISH_TRIGGER_START;
   };
 
