@@ -44,6 +44,9 @@ export interface ChartSolve<S extends { t: number }, C extends Constraint, P, A 
   extend(assessed: Assessed<S, C>, active: readonly C[]): A;
 }
 
+/** Balance residual (relative) of the active set's non-negative forces above which no polish is tried from it. */
+const POLISH_START_BALANCE = 0.05;
+
 /** Newton on the active set, for each candidate threshold in turn; accepted only if the kernel agrees. */
 export function polishOnChart<S extends { t: number }, C extends Constraint, P, A extends Assessed<S, C>>(
   state: S, cs: ChartSolve<S, C, P, A>,
@@ -57,7 +60,11 @@ export function polishOnChart<S extends { t: number }, C extends Constraint, P, 
     const key = active.map((k) => `${k.kind}${k.a}/${k.b}/${shiftKey(k)}/${k.tb.toFixed(6)}`).join(';');
     if (active.length === 0 || key === lastSet) continue;
     lastSet = key;
-    const lambda0 = certify({ active, nFree: chart.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false }).lambda;
+    const start = certify({ active, nFree: chart.nFree, maxViolation: 0, activeTol: 0, activeTolLimit: 1, polished: false });
+    // Newton converges from a good start only: forces that miss the balance by percents mean a wrong active set
+    // (on necklace:32 every such try stalled, at 0.1 s each; successes start at 1e-9 … 2e-3).
+    if (!(start.certificate.balanceResidual <= POLISH_START_BALANCE)) continue;
+    const lambda0 = start.lambda;
     const r = polishKkt(chart.model, cs.polishSettings, active, state.t, lambda0, cs.scale);
     if (!r.ok) continue;
     const next = chart.at(r.z);
