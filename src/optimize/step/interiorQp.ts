@@ -116,6 +116,13 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
     pairRowStart[r + 1] = pairA.length;
   }
   const { matrix: K, slot } = trip.toCsc();
+  // Each pair's product of row entries, fixed for the QP (two entries of a row in the same column meet twice
+  // on the diagonal): an iteration scales it by the row's barrier weight.
+  const pairCoef = new Float64Array(pairA.length);
+  for (let e = 0; e < pairA.length; e++) {
+    const a = pairA[e]!, b = pairB[e]!;
+    pairCoef[e] = qp.rowVal[a]! * qp.rowVal[b]! * (a !== b && qp.colIdx[a] === qp.colIdx[b] ? 2 : 1);
+  }
   const base = Float64Array.from(K.values);
   const diagSlot = slot.subarray(firstDiag, firstDiag + n);
   const pairSlot = slot.subarray(firstPair, firstPair + pairA.length);
@@ -227,11 +234,7 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
       for (let r = 0; r < m; r++) {
         const d = 1 / (s[r]! / y[r]! + rho);
         rowScale[r] = d;
-        for (let e = pairRowStart[r]!; e < pairRowStart[r + 1]!; e++) {
-          const a = pairA[e]!, b = pairB[e]!;
-          // One stored (upper) entry per pair; two entries of a row in the same column meet twice on the diagonal.
-          vals[pairSlot[e]!] = vals[pairSlot[e]!]! + d * qp.rowVal[a]! * qp.rowVal[b]! * (a !== b && qp.colIdx[a] === qp.colIdx[b] ? 2 : 1);
-        }
+        for (let e = pairRowStart[r]!, end = pairRowStart[r + 1]!; e < end; e++) vals[pairSlot[e]!] += d * pairCoef[e]!;
       }
       const f = factorLdl(pattern, K, PIVOT_ZERO_REL);
       // By the Schur complement, the reduced system has n positive and m negative eigenvalues exactly when

@@ -354,8 +354,8 @@ export function bindingContacts<C extends Constraint>(active: readonly C[], lamb
 /** Upper-triangle entries of W = Σ λ_k ∇²g_k at the chart's origin (none where the chart cannot give it). */
 function lagrangianEntries<C extends Constraint, P>(
   chart: LoopChart<{ t: number }, C, P>, cons: readonly Constraint[], lambda: Float64Array,
-): { i: number[]; j: number[]; v: number[] } {
-  const out = { i: [] as number[], j: [] as number[], v: [] as number[] };
+): { i: Int32Array; j: Int32Array; v: Float64Array } {
+  const none = { i: new Int32Array(0), j: new Int32Array(0), v: new Float64Array(0) };
   const keep: Constraint[] = [], lam: number[] = [];
   cons.forEach((c, k) => {
     if (lambda[k]! > 0 && (c.kind === 'strut' || c.kind === 'sample')) {
@@ -363,15 +363,29 @@ function lagrangianEntries<C extends Constraint, P>(
       lam.push(lambda[k]!);
     }
   });
-  if (keep.length === 0 || !chart.model.hessianEntries) return out;
+  if (keep.length === 0 || !chart.model.hessianEntries) return none;
   const posed = chart.model.posedAt(new Float64Array(chart.nFree));
+  // Typed buffers, doubled as they fill: a long chain hands out ~10⁵ entries per step.
+  let cap = 256, len = 0;
+  let I = new Int32Array(cap), J = new Int32Array(cap), V = new Float64Array(cap);
   const ok = chart.model.hessianEntries(keep as unknown as C[], posed, Float64Array.from(lam), (i, j, v) => {
-    out.i.push(i);
-    out.j.push(j);
-    out.v.push(v);
+    if (len === cap) {
+      cap *= 2;
+      const I2 = new Int32Array(cap), J2 = new Int32Array(cap), V2 = new Float64Array(cap);
+      I2.set(I);
+      J2.set(J);
+      V2.set(V);
+      I = I2;
+      J = J2;
+      V = V2;
+    }
+    I[len] = i;
+    J[len] = j;
+    V[len] = v;
+    len++;
   });
-  if (!ok) return { i: [], j: [], v: [] };
-  return out;
+  if (!ok) return none;
+  return { i: I.subarray(0, len), j: J.subarray(0, len), v: V.subarray(0, len) };
 }
 
 /**

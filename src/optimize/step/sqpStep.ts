@@ -23,9 +23,9 @@ export interface SqpStepInput {
   box: number;
   tMax: number;
   /** Upper-triangle entries (i <= j) of W in free coordinates; empty for a first-order step. */
-  wI: number[];
-  wJ: number[];
-  wV: number[];
+  wI: ArrayLike<number>;
+  wJ: ArrayLike<number>;
+  wV: ArrayLike<number>;
   deadline?: number | undefined;
   /** Relative accuracy of the QP (default QP_TOL): the outer loop asks for less while the gains are large. */
   accuracy?: number;
@@ -60,16 +60,17 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
   const n = nFree + 1;
   const m = cons.length;
   // Objective ½ xᵀPx + qᵀx in x = (z, τ): P = -W + I/Δ (τ too), q = -e_τ.
-  const pI: number[] = [], pJ: number[] = [], pV: number[] = [];
+  const nw = input.wV.length;
+  const pI = new Int32Array(n + nw), pJ = new Int32Array(n + nw), pV = new Float64Array(n + nw);
   for (let i = 0; i < n; i++) {
-    pI.push(i);
-    pJ.push(i);
-    pV.push(1 / delta);
+    pI[i] = i;
+    pJ[i] = i;
+    pV[i] = 1 / delta;
   }
-  for (let k = 0; k < input.wV.length; k++) {
-    pI.push(input.wI[k]!);
-    pJ.push(input.wJ[k]!);
-    pV.push(-input.wV[k]!);
+  for (let k = 0; k < nw; k++) {
+    pI[n + k] = input.wI[k]!;
+    pJ[n + k] = input.wJ[k]!;
+    pV[n + k] = -input.wV[k]!;
   }
   const q = new Float64Array(n);
   q[nFree] = -1;
