@@ -56,11 +56,20 @@ export function packingBound(rings: Ring[], tubeRatios: number[], linking: numbe
       k++;
       wMin = Math.min(wMin, tubeRatios[j] ?? 1);
     }
-    const rk = packingRadius(k);
-    const tube = k === 0 ? R / wi : (rk * R) / (wMin + rk * wi);
+    const tube = ringPackingBound(R, wi, k, wMin);
     if (best === null || tube < best.tube) best = { tube, ring: i, through: k, gap: 0 };
   }
   return best;
+}
+
+/**
+ * The bound of one ring (core radius R, tube ratio wi) with k rings through it, the thinnest of tube ratio
+ * wMin: t <= r_k R / (wMin + r_k wi), or t <= R / wi when none passes through.
+ */
+export function ringPackingBound(R: number, wi: number, k: number, wMin: number): number {
+  if (k === 0) return R / wi;
+  const rk = packingRadius(k);
+  return (rk * R) / (wMin + rk * wi);
 }
 
 /** The bound with its gap (bound - tube) / bound filled in. */

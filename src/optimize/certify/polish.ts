@@ -29,15 +29,6 @@ export const RING_POLISH: KktSettings = {
   fractions: Array.from({ length: 12 }, (_, k) => 2 ** -k),
 };
 
-export type PolishResult = KktResult<Constraint>;
-
-/** `scale` is the length scale (the smallest core radius). */
-export function polish(
-  chart: Chart, active0: readonly Constraint[], t0: number, lambda0: Float64Array, scale: number, dep: DepartureSpec | null,
-): PolishResult {
-  return polishKkt(ringKktModel(chart, dep), RING_POLISH, active0, t0, lambda0, scale);
-}
-
 /** The ring chart as the Newton core and the second-order test (secondOrder.ts) see it. */
 export function ringKktModel(chart: Chart, dep: DepartureSpec | null): KktModel<Constraint, Posed> {
   const n = chart.nFree;

@@ -12,7 +12,7 @@ import type { Lattice, Ring } from '../../model/types.js';
 import { ringOrbits } from '../../model/symmetry.js';
 import { expandContactOrbits } from '../../model/orbit.js';
 import { optimalityOf, optimalityText } from '../../model/result.js';
-import { boundAttained, packingBound, packingRadius, withGap } from '../certify/bound.js';
+import { boundAttained, packingBound, ringPackingBound, withGap } from '../certify/bound.js';
 import type { InflateProblem, PeriodicOutcome, PeriodicProblem, SolveOutcome } from './problem.js';
 import { resultHead, runStarts, settleBest, type StartLoopOptions, type StartsRun } from './startLoop.js';
 
@@ -118,9 +118,8 @@ export function periodicBound(problem: PeriodicProblem): Bound | null {
   }
   let best: Bound | null = null;
   for (let i = 0; i < m; i++) {
-    const R = problem.rings[i]!.radius, wi = problem.tubeRatios[i]!, k = through[i]!;
-    const rk = packingRadius(k);
-    const tube = k === 0 ? R / wi : (rk * R) / (wMin[i]! + rk * wi);
+    const k = through[i]!;
+    const tube = ringPackingBound(problem.rings[i]!.radius, problem.tubeRatios[i]!, k, wMin[i]!);
     if (best === null || tube < best.tube) best = { tube, ring: i, through: k, gap: 0 };
   }
   return best;

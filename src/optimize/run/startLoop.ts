@@ -1,6 +1,7 @@
 // The start loop shared by the ring multistart and the weave multistart (both in multistart.ts): seeded
 // starts on the worker pool (a WebAssembly abort ends only its worker), every outcome checked as it arrives
-// by the caller's independent check, progress reported, and the best verified start chosen; plus the parts of the result file both fill the same way.
+// by the caller's independent check, progress reported, and the best verified start chosen; plus the parts
+// of the result file both fill the same way.
 import { tightestRing } from '../../model/orbit.js';
 import { CLEARANCE_TOLERANCE } from '../../check/verify.js';
 import { RESULT_FORMAT, type Certificate, type ResultRing, type SolveResult, type StartRecord, type Verification } from '../../model/result.js';

@@ -21,6 +21,7 @@ import type { Constraint } from '../constraints/constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
 import { carryMultipliers, QP_TOL, sqpStep, type SqpStepInput } from './sqpStep.js';
 import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
+import { SymTriplets } from './sparseLdl.js';
 import { BOUND_METHOD, boundAttained, boundCertificate } from '../certify/bound.js';
 import type { SolveOutcome } from '../run/problem.js';
 import {
@@ -365,27 +366,9 @@ function lagrangianEntries<C extends Constraint, P>(
   });
   if (keep.length === 0 || !chart.model.hessianEntries) return none;
   const posed = chart.model.posedAt(new Float64Array(chart.nFree));
-  // Typed buffers, doubled as they fill: a long chain hands out ~10⁵ entries per step.
-  let cap = 256, len = 0;
-  let I = new Int32Array(cap), J = new Int32Array(cap), V = new Float64Array(cap);
-  const ok = chart.model.hessianEntries(keep as unknown as C[], posed, Float64Array.from(lam), (i, j, v) => {
-    if (len === cap) {
-      cap *= 2;
-      const I2 = new Int32Array(cap), J2 = new Int32Array(cap), V2 = new Float64Array(cap);
-      I2.set(I);
-      J2.set(J);
-      V2.set(V);
-      I = I2;
-      J = J2;
-      V = V2;
-    }
-    I[len] = i;
-    J[len] = j;
-    V[len] = v;
-    len++;
-  });
-  if (!ok) return none;
-  return { i: I.subarray(0, len), j: J.subarray(0, len), v: V.subarray(0, len) };
+  const W = new SymTriplets(chart.nFree);
+  const ok = chart.model.hessianEntries(keep as unknown as C[], posed, Float64Array.from(lam), (i, j, v) => W.add(i, j, v));
+  return ok ? W.entries() : none;
 }
 
 /**

@@ -46,6 +46,11 @@ export class SymTriplets {
     this.vals[k] = v;
   }
 
+  /** The entries added so far, in order (views, valid until the next add). */
+  entries(): { i: Int32Array; j: Int32Array; v: Float64Array } {
+    return { i: this.rows.subarray(0, this.count), j: this.cols.subarray(0, this.count), v: this.vals.subarray(0, this.count) };
+  }
+
   /** The matrix, and for each added entry in order its index into values (so values can be re-summed for new numbers with the same pattern: values.fill(0); values[slot[k]] += v_k). Diagonal entries are always present. */
   toCsc(): { matrix: SymCsc; slot: Int32Array } {
     const n = this.n, m = this.count, total = m + n;
