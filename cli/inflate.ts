@@ -88,7 +88,8 @@ export async function runInflate(arg: string, options: SolveCliOptions, io: Io, 
   if (skipped > 0) {
     notes.push(
       `Start ${result.starts.length - 1} attained the packing bound, a proven global maximum, so the other ${skipped} start${skipped > 1 ? 's' : ''}` +
-        ` could not do better and ${skipped > 1 ? 'were' : 'was'} skipped (--all-starts runs them all).`,
+        ` could not do better and ${skipped > 1 ? 'are' : 'is'} left out: not run, or not counted where another worker had` +
+        ` already begun ${skipped > 1 ? 'them' : 'it'} (--all-starts runs and counts them all).`,
     );
   }
   const known = resolved.catalog ? knownOptimum(resolved.catalog) : null;
