@@ -20,7 +20,7 @@
 // positive definite, i.e. when its LDLᵀ has n positive pivots; else δ grows until it has — the inertia
 // correction of Wächter & Biegler (Math. Program. 106, 2006, IPOPT).
 // A QP that does not converge within its iteration or time budget is a failed step, never a hang.
-import { analyseLdl, factorLdl, SymTriplets, type LdlFactor } from './sparseLdl.js';
+import { analyseLdl, factorLdl, SymTriplets, type LdlFactor, type LdlPattern, type SymCsc } from './sparseLdl.js';
 
 export interface SparseQp {
   /** Number of variables. */
@@ -92,47 +92,103 @@ const REFINE_ENOUGH = 1e-14;
  */
 const PIVOT_ZERO_REL = 1e-40;
 
-export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSolution {
-  const tol = options.tol ?? DEFAULT_TOL;
-  const maxIt = options.maxIterations ?? DEFAULT_MAX_ITERATIONS;
-  const n = qp.n, m = qp.h.length;
+/**
+ * What a QP's structure fixes (P, the pattern of C and of the normal matrix, its ordering and elimination
+ * tree): computed once and shared by the QPs that differ only in q, h and the bounds (a second-order
+ * correction re-solves the step's QP with shifted right-hand sides).
+ */
+export interface PreparedQp {
+  readonly n: number;
+  readonly m: number;
+  readonly K: SymCsc;
+  readonly base: Float64Array;
+  readonly diagSlot: Int32Array;
+  /** Per row: its group (rows with the same columns share the slots of their column pairs). */
+  readonly rowGroup: Int32Array;
+  readonly groupPairStart: Int32Array;
+  readonly groupPairSlot: Int32Array;
+  /** Per row, from rowPairStart[r]: the products of its entries for each column pair of its group. */
+  readonly rowPairStart: Int32Array;
+  readonly pairCoef: Float64Array;
+  readonly pattern: LdlPattern;
+  readonly P: CompactSym;
+  readonly pDiagMax: number;
+  /** The structure it was prepared for (checked on reuse). */
+  readonly rowPtr: Int32Array;
+  readonly colIdx: Int32Array;
+  readonly rowVal: Float64Array;
+}
 
-  // The normal matrix M = P + Σ + δI + Cᵀ (Y S⁻¹) C: P's entries, every diagonal entry, and each pair of
-  // columns a row touches (the ring-contact graph again: a strut couples its two rings and the tube).
+/**
+ * The normal matrix M = P + Σ + δI + Cᵀ (Y S⁻¹) C has P's entries, every diagonal entry, and each pair of
+ * columns a row touches (the ring-contact graph again: a strut couples its two rings and the tube). Many rows
+ * share their columns (a strut and the samples of one pair of rings), so the pattern is built per group of
+ * rows with the same columns, and each row keeps only the products of its own entries.
+ */
+export function prepareQp(qp: SparseQp): PreparedQp {
+  const n = qp.n, m = qp.h.length;
   const trip = new SymTriplets(n);
   for (let k = 0; k < qp.pV.length; k++) trip.add(qp.pI[k]!, qp.pJ[k]!, qp.pV[k]!);
   const firstDiag = trip.length;
   for (let i = 0; i < n; i++) trip.add(i, i, 0);
+  const groups = new Map<string, number>();
+  const rowGroup = new Int32Array(m);
+  const groupPairStartList: number[] = [0];
+  const rowPairStart = new Int32Array(m + 1);
   const firstPair = trip.length;
-  const pairA: number[] = [], pairB: number[] = [], pairRowStart = new Int32Array(m + 1);
   for (let r = 0; r < m; r++) {
-    for (let p = qp.rowPtr[r]!; p < qp.rowPtr[r + 1]!; p++) {
-      for (let p2 = p; p2 < qp.rowPtr[r + 1]!; p2++) {
-        trip.add(qp.colIdx[p]!, qp.colIdx[p2]!, 0);
-        pairA.push(p);
-        pairB.push(p2);
-      }
+    const start = qp.rowPtr[r]!, end = qp.rowPtr[r + 1]!;
+    const len = end - start;
+    rowPairStart[r + 1] = rowPairStart[r]! + (len * (len + 1)) / 2;
+    const key = Array.prototype.join.call(qp.colIdx.subarray(start, end), ',');
+    let g = groups.get(key);
+    if (g === undefined) {
+      g = groups.size;
+      groups.set(key, g);
+      for (let p = start; p < end; p++) for (let p2 = p; p2 < end; p2++) trip.add(qp.colIdx[p]!, qp.colIdx[p2]!, 0);
+      groupPairStartList.push(groupPairStartList[groupPairStartList.length - 1]! + (len * (len + 1)) / 2);
     }
-    pairRowStart[r + 1] = pairA.length;
+    rowGroup[r] = g;
   }
   const { matrix: K, slot } = trip.toCsc();
-  // Each pair's product of row entries, fixed for the QP (two entries of a row in the same column meet twice
-  // on the diagonal): an iteration scales it by the row's barrier weight.
-  const pairCoef = new Float64Array(pairA.length);
-  for (let e = 0; e < pairA.length; e++) {
-    const a = pairA[e]!, b = pairB[e]!;
-    pairCoef[e] = qp.rowVal[a]! * qp.rowVal[b]! * (a !== b && qp.colIdx[a] === qp.colIdx[b] ? 2 : 1);
+  // Each row's products of entries, fixed for the QP (two entries of a row in the same column meet twice on
+  // the diagonal): an iteration scales them by the row's barrier weight.
+  const pairCoef = new Float64Array(rowPairStart[m]!);
+  for (let r = 0; r < m; r++) {
+    const start = qp.rowPtr[r]!, end = qp.rowPtr[r + 1]!;
+    let e = rowPairStart[r]!;
+    for (let p = start; p < end; p++) {
+      for (let p2 = p; p2 < end; p2++) {
+        pairCoef[e++] = qp.rowVal[p]! * qp.rowVal[p2]! * (p !== p2 && qp.colIdx[p] === qp.colIdx[p2] ? 2 : 1);
+      }
+    }
   }
   const base = Float64Array.from(K.values);
-  const diagSlot = slot.subarray(firstDiag, firstDiag + n);
-  const pairSlot = slot.subarray(firstPair, firstPair + pairA.length);
-  const rowScale = new Float64Array(m);
+  const groupPairStart = Int32Array.from(groupPairStartList);
+  const groupPairSlot = slot.slice(firstPair, firstPair + groupPairStart[groupPairStart.length - 1]!);
   const pattern = analyseLdl(K);
   // P with its duplicates summed (a Lagrangian Hessian arrives as one block per strut, many on the same
   // pair of rings): the products by P in the residuals and the refinement run over the distinct entries.
   const P = compactP(K, slot, qp.pV.length, base);
   let pDiagMax = 1;
   for (let k = 0; k < P.v.length; k++) if (P.i[k] === P.j[k]) pDiagMax = Math.max(pDiagMax, Math.abs(P.v[k]!));
+  return {
+    n, m, K, base, diagSlot: slot.slice(firstDiag, firstDiag + n), rowGroup, groupPairStart, groupPairSlot, rowPairStart,
+    pairCoef, pattern, P, pDiagMax, rowPtr: qp.rowPtr, colIdx: qp.colIdx, rowVal: qp.rowVal,
+  };
+}
+
+/** `prepared`: from prepareQp on a QP with the same P and C (q, h and the bounds may differ). */
+export function solveQpInterior(qp: SparseQp, options: QpOptions = {}, prepared?: PreparedQp): QpSolution {
+  const tol = options.tol ?? DEFAULT_TOL;
+  const maxIt = options.maxIterations ?? DEFAULT_MAX_ITERATIONS;
+  const n = qp.n, m = qp.h.length;
+  const prep = prepared ?? prepareQp(qp);
+  if (prep.n !== n || prep.m !== m || prep.rowPtr !== qp.rowPtr || prep.colIdx !== qp.colIdx || prep.rowVal !== qp.rowVal) {
+    throw new RangeError('solveQpInterior: the prepared structure belongs to another QP; call prepareQp for this one');
+  }
+  const { K, base, diagSlot, rowGroup, groupPairStart, groupPairSlot, rowPairStart, pairCoef, pattern, P, pDiagMax } = prep;
+  const rowScale = new Float64Array(m);
 
   const { lower: l, upper: u, h, q } = qp;
   // Start: x at the bound-clipped origin, slacks and multipliers at a size set by the data.
@@ -234,7 +290,8 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}): QpSoluti
       for (let r = 0; r < m; r++) {
         const d = 1 / (s[r]! / y[r]! + rho);
         rowScale[r] = d;
-        for (let e = pairRowStart[r]!, end = pairRowStart[r + 1]!; e < end; e++) vals[pairSlot[e]!] += d * pairCoef[e]!;
+        const g = rowGroup[r]!, gs = groupPairStart[g]!, off = rowPairStart[r]! - gs;
+        for (let e = gs, end = groupPairStart[g + 1]!; e < end; e++) vals[groupPairSlot[e]!] += d * pairCoef[e + off]!;
       }
       const f = factorLdl(pattern, K, PIVOT_ZERO_REL);
       // By the Schur complement, the reduced system has n positive and m negative eigenvalues exactly when

@@ -203,6 +203,8 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       sqpInput = { cons, nFree: chart.nFree, t: state.t, delta, box, tMax: loop.tMax, wI: W.i, wJ: W.j, wV: W.v, deadline: loop.deadline, accuracy };
       const s = sqpStep(sqpInput);
       if (s.ok) carried = { cons, lambda: s.lambda };
+      // A second-order correction re-solves this QP with shifted slacks: same objective and rows.
+      sqpInput.structure = s.structure;
       step = s;
     } else {
       step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);

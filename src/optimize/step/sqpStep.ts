@@ -11,7 +11,7 @@
 // sparse interior-point method (interiorQp.ts): a strut row touches the 12 coordinates of its two rings and
 // W is block-sparse on the contact graph, so a step costs time linear in the rings for chains and necklaces.
 import type { Constraint } from '../constraints/constraints.js';
-import { solveQpInterior } from './interiorQp.js';
+import { prepareQp, solveQpInterior, type PreparedQp } from './interiorQp.js';
 
 export interface SqpStepInput {
   cons: readonly Constraint[];
@@ -31,6 +31,20 @@ export interface SqpStepInput {
   accuracy?: number;
   /** Added to each row's slack h_k (a second-order correction), or none. */
   shift?: Float64Array;
+  /** The QP structure of an earlier step on the same constraints, Hessian and Δ (SqpStepResult.structure). */
+  structure?: QpStructure;
+}
+
+/** The parts of a step's QP that a re-solve with other slacks shares (its objective and rows). */
+export interface QpStructure {
+  pI: Int32Array;
+  pJ: Int32Array;
+  pV: Float64Array;
+  q: Float64Array;
+  rowPtr: Int32Array;
+  colIdx: Int32Array;
+  rowVal: Float64Array;
+  prepared: PreparedQp;
 }
 
 export interface SqpStepResult {
@@ -48,6 +62,8 @@ export interface SqpStepResult {
   /** True when the QP had to be convexified beyond the trust-region term (the model was not concave there). */
   convexified: boolean;
   message: string;
+  /** For a re-solve with shifted slacks (SqpStepInput.structure). */
+  structure: QpStructure;
 }
 
 /** QP accuracy: far below the outer loop's final tolerance, so the step's own error never stops it. */
@@ -59,7 +75,42 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
   const { cons, nFree, t, delta, box, tMax } = input;
   const n = nFree + 1;
   const m = cons.length;
-  // Objective ½ xᵀPx + qᵀx in x = (z, τ): P = -W + I/Δ (τ too), q = -e_τ.
+  const structure = input.structure ?? qpStructure(input);
+  const h = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    const con = cons[k]!;
+    // Rounding can leave a slack of -1e-16; the linearisation point must stay feasible.
+    h[k] = Math.max(0, con.g - con.c * t) + (input.shift ? input.shift[k]! : 0);
+  }
+  const lower = new Float64Array(n).fill(-box), upper = new Float64Array(n).fill(box);
+  // τ: no useful lower limit (a step may have to give up some t), capped by t·w_i <= R_i.
+  lower[nFree] = -(t + tMax) - box;
+  upper[nFree] = Math.max(box * 1e-12, tMax - t);
+  const { prepared, ...rest } = structure;
+  const sol = solveQpInterior(
+    { n, ...rest, h, lower, upper },
+    { tol: input.accuracy ?? QP_TOL, maxIterations: QP_MAX_ITERATIONS, ...(input.deadline !== undefined ? { deadline: input.deadline } : {}) },
+    prepared,
+  );
+  const z = sol.x.subarray(0, nFree).slice();
+  let curvature = 0;
+  for (let k = 0; k < input.wV.length; k++) {
+    const i = input.wI[k]!, j = input.wJ[k]!;
+    curvature += (i === j ? 0.5 : 1) * input.wV[k]! * z[i]! * z[j]!;
+  }
+  const tau = sol.x[nFree]! + curvature;
+  const finite = Number.isFinite(tau) && z.every(Number.isFinite);
+  return {
+    ok: sol.ok && finite, z, tau: finite ? Math.min(tau, Math.max(0, tMax - t)) : 0, lambda: sol.y,
+    convexified: sol.regularisation > 0, message: sol.message, structure,
+  };
+}
+
+/** The QP's objective and rows: P = -W + I/Δ (τ too) and q = -e_τ in x = (z, τ); rows c τ - G·z <= h. */
+function qpStructure(input: SqpStepInput): QpStructure {
+  const { cons, nFree, delta } = input;
+  const n = nFree + 1;
+  const m = cons.length;
   const nw = input.wV.length;
   const pI = new Int32Array(n + nw), pJ = new Int32Array(n + nw), pV = new Float64Array(n + nw);
   for (let i = 0; i < n; i++) {
@@ -74,10 +125,9 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
   }
   const q = new Float64Array(n);
   q[nFree] = -1;
-  // Rows: c τ - G·z <= h, the nonzeros of the (dense-stored) gradients.
+  // The nonzeros of the (dense-stored) gradients.
   const rowPtr = new Int32Array(m + 1);
   const colIdx: number[] = [], rowVal: number[] = [];
-  const h = new Float64Array(m);
   for (let k = 0; k < m; k++) {
     const con = cons[k]!;
     const G = con.grad;
@@ -95,29 +145,9 @@ export function sqpStep(input: SqpStepInput): SqpStepResult {
       rowVal.push(con.c);
     }
     rowPtr[k + 1] = colIdx.length;
-    // Rounding can leave a slack of -1e-16; the linearisation point must stay feasible.
-    h[k] = Math.max(0, con.g - con.c * t) + (input.shift ? input.shift[k]! : 0);
   }
-  const lower = new Float64Array(n).fill(-box), upper = new Float64Array(n).fill(box);
-  // τ: no useful lower limit (a step may have to give up some t), capped by t·w_i <= R_i.
-  lower[nFree] = -(t + tMax) - box;
-  upper[nFree] = Math.max(box * 1e-12, tMax - t);
-  const sol = solveQpInterior(
-    { n, pI, pJ, pV, q, rowPtr, colIdx: Int32Array.from(colIdx), rowVal: Float64Array.from(rowVal), h, lower, upper },
-    { tol: input.accuracy ?? QP_TOL, maxIterations: QP_MAX_ITERATIONS, ...(input.deadline !== undefined ? { deadline: input.deadline } : {}) },
-  );
-  const z = sol.x.subarray(0, nFree).slice();
-  let curvature = 0;
-  for (let k = 0; k < input.wV.length; k++) {
-    const i = input.wI[k]!, j = input.wJ[k]!;
-    curvature += (i === j ? 0.5 : 1) * input.wV[k]! * z[i]! * z[j]!;
-  }
-  const tau = sol.x[nFree]! + curvature;
-  const finite = Number.isFinite(tau) && z.every(Number.isFinite);
-  return {
-    ok: sol.ok && finite, z, tau: finite ? Math.min(tau, Math.max(0, tMax - t)) : 0, lambda: sol.y,
-    convexified: sol.regularisation > 0, message: sol.message,
-  };
+  const rows = { pI, pJ, pV, q, rowPtr, colIdx: Int32Array.from(colIdx), rowVal: Float64Array.from(rowVal) };
+  return { ...rows, prepared: prepareQp({ n, ...rows, h: new Float64Array(m), lower: new Float64Array(n), upper: new Float64Array(n) }) };
 }
 
 /** Angular distance (radians) within which a strut of the previous step is the same strut now. */
