@@ -54,11 +54,14 @@ async function solveOnce(spec: string, method: Method): Promise<Cell> {
   try {
     const out = await solveInflate(problem, {
       tol: TOL, maxIterations: MAX_ITERATIONS, seed: SEED, perturbation: 0.05, step: method,
+      // The solver's own time limit too: work between iterations (a final assessment) reports to no callback.
+      deadline: Date.now() + BUDGET_S * 1000,
       onIteration: () => {
         if ((performance.now() - t0) / 1000 > BUDGET_S) throw new OverBudget();
       },
     });
     const seconds = (performance.now() - t0) / 1000;
+    if (seconds > BUDGET_S) throw new OverBudget();
     const verified = verifyOutcome(problem, out).ok;
     return { seconds, iterations: out.iterations, status: out.status, tube: out.tube, verified };
   } catch (e) {

@@ -3,7 +3,7 @@
 // balance criterion of Cantarella, Fu, Kusner, Sullivan, Wrinkle, Geom. Topol. 10, 2006) — whoever proposed
 // them; without a usable candidate the small problem falls back to non-negative least squares.
 import { describe, expect, it } from 'vitest';
-import { certify, CERT_BALANCE_TOL, DENSE_NNLS_MAX_FREE } from '../src/optimize/certify/certificate.js';
+import { certify, CERT_BALANCE_TOL, DENSE_NNLS_MAX_FREE, DENSE_SECOND_ORDER_MAX_FREE } from '../src/optimize/certify/certificate.js';
 import type { Constraint } from '../src/optimize/constraints/constraints.js';
 import { seededRandom } from '../src/model/random.js';
 import { solveInflate } from '../src/optimize/run/solve.js';
@@ -39,6 +39,7 @@ describe('certificate from candidate forces', () => {
     const { cons, forces } = balancedStruts(12, 20, 3, 7);
     const out = certify({ ...base, active: cons, nFree: 12, hint: forces });
     expect(out.certificate.certified).toBe(true);
+    expect(out.certificate.note).toContain('second-order condition was not checked.');
     // Exact forces balance to rounding (the balance is relative to the largest force term).
     expect(out.certificate.balanceResidual).toBeLessThan(1e-13);
     for (let k = 0; k < forces.length; k++) expect(out.lambda[k]).toBeCloseTo(forces[k]!, 14);
@@ -82,6 +83,9 @@ describe('certificate from candidate forces', () => {
     const { cons, forces } = balancedStruts(n, n + 10, 4, 3);
     const good = certify({ ...base, active: cons, nFree: n, hint: forces });
     expect(good.certificate.certified).toBe(true);
+    // Nor is the dense second-order test run there (the assessment passes no curvature), and the note says so.
+    expect(n).toBeGreaterThan(DENSE_SECOND_ORDER_MAX_FREE);
+    expect(good.certificate.note).toContain(`second-order condition was not checked (with ${n} variables the dense test is not run)`);
     const spoiled = Float64Array.from(forces, (l, k) => (k === 0 ? 3 * l : l));
     const bad = certify({ ...base, active: cons, nFree: n, hint: spoiled });
     expect(bad.certificate.certified).toBe(false);
