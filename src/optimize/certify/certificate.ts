@@ -49,9 +49,9 @@ export interface CertifyInput {
  */
 export const DENSE_NNLS_MAX_FREE = 300;
 /**
- * Free variables above which the second-order test (secondOrder.ts: an SVD of the active rows and the
- * Lagrangian's curvature on their null space, both dense, O(n³)) is not run, nor the saddle search that uses
- * it: on necklace:256 (1530 variables) one assessment took 160 s.
+ * Free variables above which the dense second-order test (secondOrder.ts: an SVD of the active rows and the
+ * Lagrangian's curvature on their null space, O(n³)) is not run when the sparse inertia test does not pass,
+ * nor the saddle search that uses it: on necklace:256 (1530 variables) one assessment took 160 s.
  */
 export const DENSE_SECOND_ORDER_MAX_FREE = 300;
 
@@ -132,7 +132,7 @@ export function certify(input: CertifyInput): CertifyOutput {
   } else if (firstOrder && unchecked) {
     note =
       `A Kuhn-Tucker point (forces on ${what} balance to ${balanceResidual.toExponential(1)}), not certified: ` +
-      `the second-order condition could not be checked (a contact was lost while differencing the Lagrangian).`;
+      `the second-order condition could not be checked (${nFree > DENSE_SECOND_ORDER_MAX_FREE ? `with ${nFree} variables the dense test is not run` : 'a contact was lost while differencing the Lagrangian'}).`;
   } else if (!usable) {
     note = `Not certified: the contacts are only identified to ${input.activeTol.toExponential(1)} of the tube; the solver stopped before convergence.`;
   } else if (m === 0) {

@@ -11,7 +11,7 @@ import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-
 import type { Constraint } from '../constraints/constraints.js';
 import { kktJacobianOf, type KktModel } from './kktNewton.js';
 import { analyseLdl, factorLdl, SymTriplets } from '../step/sparseLdl.js';
-import { CURVATURE_TOL } from './certificate.js';
+import { CURVATURE_TOL, DENSE_SECOND_ORDER_MAX_FREE } from './certificate.js';
 import { leastCurvatureOverForces } from './multiplierSet.js';
 
 /** Multipliers below this fraction of the largest do not restrict the critical subspace. */
@@ -53,6 +53,8 @@ export function criticalCurvature<C extends Constraint, P>(
     const bound = curvatureBoundByInertia(model, active, lambda, L);
     if (bound !== null) return { maxCurvature: bound, direction: null };
   }
+  // The dense test (an SVD, O(n³)) is not run on large problems: the condition is then left unchecked.
+  if (n > DENSE_SECOND_ORDER_MAX_FREE) return null;
   const J = kktJacobianOf(model, active, new Float64Array(n), lambda, L);
   if (J === null) return null;
   const all = [...Array(m).keys()];

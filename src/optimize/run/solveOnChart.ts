@@ -3,7 +3,7 @@
 // curvature of the Lagrangian along the contacts to tell a maximum from a saddle, with the way off at a
 // saddle). The ring solve (solve.ts) and the weave solve (periodicSolve.ts) set up their problem and their
 // chart and hand it here as a ChartSolve: what differs between the charts is data and hooks, not code.
-import { certify, CURVATURE_TOL, DENSE_SECOND_ORDER_MAX_FREE } from '../certify/certificate.js';
+import { certify, CURVATURE_TOL } from '../certify/certificate.js';
 import { polishKkt, type KktModel, type KktSettings } from '../certify/kktNewton.js';
 import { criticalCurvature } from '../certify/secondOrder.js';
 import { activeSet } from '../constraints/collect.js';
@@ -103,9 +103,7 @@ export function assessOnChart<S extends { t: number }, C extends Constraint, P, 
       continue;
     }
     // Samples bound a contact arc from above, so curvature computed with them can be spurious: skip it there.
-    // Above DENSE_SECOND_ORDER_MAX_FREE variables the dense test is not run (no saddle search either).
-    const curv = active.some((k) => k.kind === 'sample') || chart.nFree > DENSE_SECOND_ORDER_MAX_FREE
-      ? null : curvatureOf(chart.model, active, firstOrder.lambda, cs);
+    const curv = active.some((k) => k.kind === 'sample') ? null : curvatureOf(chart.model, active, firstOrder.lambda, cs);
     const cert = certify({ ...base, active, activeTol: tol, curvature: curv?.maxCurvature ?? null, hint: firstOrder.lambda, ...cs.secondOrder });
     const escape = curv !== null && curv.maxCurvature > CURVATURE_TOL ? curv.direction : null;
     const out = cs.extend({ state, cert, escape, binding: bindingContacts(active, firstOrder.lambda), polishMessage }, active);

@@ -72,7 +72,7 @@ export const QP_TOL = 1e-13;
 const QP_MAX_ITERATIONS = 100;
 
 export function sqpStep(input: SqpStepInput): SqpStepResult {
-  const { cons, nFree, t, delta, box, tMax } = input;
+  const { cons, nFree, t, box, tMax } = input;
   const n = nFree + 1;
   const m = cons.length;
   const structure = input.structure ?? qpStructure(input);
