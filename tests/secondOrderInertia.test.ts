@@ -5,7 +5,8 @@
 import { describe, expect, it } from 'vitest';
 import { seededRandom } from '../src/model/random.js';
 import { EigenvalueDecomposition, Matrix, SingularValueDecomposition } from 'ml-matrix';
-import { curvatureBoundByInertia } from '../src/optimize/certify/secondOrder.js';
+import { criticalCurvature, curvatureBoundByInertia } from '../src/optimize/certify/secondOrder.js';
+import { DENSE_SECOND_ORDER_MAX_FREE } from '../src/optimize/certify/certificate.js';
 import type { KktModel } from '../src/optimize/certify/kktNewton.js';
 import { newConstraint, type Constraint } from '../src/optimize/constraints/constraints.js';
 
@@ -97,5 +98,16 @@ describe('second-order test by inertia', () => {
     const dense = denseMaxCurvature(rows, W, n);
     expect(dense).toBeGreaterThan(1e-3);
     expect(curvatureBoundByInertia(model, cons, new Float64Array(m).fill(1 / m), 1)).toBeNull();
+  });
+
+  it(`above ${DENSE_SECOND_ORDER_MAX_FREE} free variables a point the sparse test cannot settle is left unchecked, not tested densely`, () => {
+    const n = DENSE_SECOND_ORDER_MAX_FREE + 20, m = 100;
+    const { rows, W } = syntheticCase(8, n, m, 1);
+    const { model, cons } = modelOf(rows, W, n);
+    const lambda = new Float64Array(m).fill(1 / m);
+    // A saddle (positive curvature along a null-space direction, by construction): the sparse test cannot pass.
+    expect(curvatureBoundByInertia(model, cons, lambda, 1)).toBeNull();
+    // The dense fallback (an O(n³) SVD) is not run at this size: the condition stays unchecked (null).
+    expect(criticalCurvature(model, cons, lambda, 1)).toBeNull();
   });
 });
