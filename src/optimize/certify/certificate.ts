@@ -115,9 +115,11 @@ export function certify(input: CertifyInput): CertifyOutput {
   if (others.length > 0) parts.push(`the ${others.join(' and ')} limit`);
   const what = parts.join(', ');
   let note: string;
+  /** Why no curvature came, when the problem was too large for the dense test (secondOrder.ts). */
+  const tooLarge = nFree > DENSE_SECOND_ORDER_MAX_FREE ? `with ${nFree} variables the dense test is not run` : null;
   const second =
     curvature === null
-      ? ` The second-order condition was not checked${nFree > DENSE_SECOND_ORDER_MAX_FREE ? ` (with ${nFree} variables the dense test is not run)` : ''}.`
+      ? ` The second-order condition was not checked${tooLarge ? ` (${tooLarge})` : ''}.`
       : ` The Lagrangian curves down (or is flat) along every motion that keeps the binding contacts (largest curvature ${curvature.toExponential(1)}, dimensionless).`;
   if (certified) {
     note =
@@ -132,7 +134,7 @@ export function certify(input: CertifyInput): CertifyOutput {
   } else if (firstOrder && unchecked) {
     note =
       `A Kuhn-Tucker point (forces on ${what} balance to ${balanceResidual.toExponential(1)}), not certified: ` +
-      `the second-order condition could not be checked (${nFree > DENSE_SECOND_ORDER_MAX_FREE ? `with ${nFree} variables the dense test is not run` : 'a contact was lost while differencing the Lagrangian'}).`;
+      `the second-order condition could not be checked (${tooLarge ?? 'a contact was lost while differencing the Lagrangian'}).`;
   } else if (!usable) {
     note = `Not certified: the contacts are only identified to ${input.activeTol.toExponential(1)} of the tube; the solver stopped before convergence.`;
   } else if (m === 0) {

@@ -11,7 +11,7 @@ import type { SolveOutcome } from './problem.js';
 
 /**
  * Outer iterations per start. The time limit (--time-limit) is what bounds a run; this only stops a start
- * that keeps stepping without end. Measured need at 1e-9: necklace:64 365, necklace:128 342, the jammed
+ * that keeps stepping without end. Measured need at 1e-9: necklace:64 451, necklace:128 351, the jammed
  * 6-ring layout of bench/data 450–570 (bench/scaling.ts, bench/inflate.ts).
  */
 export const DEFAULT_MAX_ITERATIONS = 2000;

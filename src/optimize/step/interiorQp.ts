@@ -114,6 +114,7 @@ export interface PreparedQp {
   readonly P: CompactSym;
   readonly pDiagMax: number;
   /** The structure it was prepared for (checked on reuse). */
+  readonly pV: SparseQp['pV'];
   readonly rowPtr: Int32Array;
   readonly colIdx: Int32Array;
   readonly rowVal: Float64Array;
@@ -174,7 +175,7 @@ export function prepareQp(qp: SparseQp): PreparedQp {
   for (let k = 0; k < P.v.length; k++) if (P.i[k] === P.j[k]) pDiagMax = Math.max(pDiagMax, Math.abs(P.v[k]!));
   return {
     n, m, K, base, diagSlot: slot.slice(firstDiag, firstDiag + n), rowGroup, groupPairStart, groupPairSlot, rowPairStart,
-    pairCoef, pattern, P, pDiagMax, rowPtr: qp.rowPtr, colIdx: qp.colIdx, rowVal: qp.rowVal,
+    pairCoef, pattern, P, pDiagMax, pV: qp.pV, rowPtr: qp.rowPtr, colIdx: qp.colIdx, rowVal: qp.rowVal,
   };
 }
 
@@ -184,7 +185,7 @@ export function solveQpInterior(qp: SparseQp, options: QpOptions = {}, prepared?
   const maxIt = options.maxIterations ?? DEFAULT_MAX_ITERATIONS;
   const n = qp.n, m = qp.h.length;
   const prep = prepared ?? prepareQp(qp);
-  if (prep.n !== n || prep.m !== m || prep.rowPtr !== qp.rowPtr || prep.colIdx !== qp.colIdx || prep.rowVal !== qp.rowVal) {
+  if (prep.n !== n || prep.m !== m || prep.pV !== qp.pV || prep.rowPtr !== qp.rowPtr || prep.colIdx !== qp.colIdx || prep.rowVal !== qp.rowVal) {
     throw new RangeError('solveQpInterior: the prepared structure belongs to another QP; call prepareQp for this one');
   }
   const { K, base, diagSlot, rowGroup, groupPairStart, groupPairSlot, rowPairStart, pairCoef, pattern, P, pDiagMax } = prep;
@@ -426,7 +427,8 @@ function stepToBoundary(v: Float64Array, dv: Float64Array, cap: number): number 
   return a;
 }
 
-function maxAbs(v: ArrayLike<number>): number {
+/** Largest absolute entry (the max norm). */
+export function maxAbs(v: ArrayLike<number>): number {
   let a = 0;
   for (let i = 0; i < v.length; i++) a = Math.max(a, Math.abs(v[i]!));
   return a;

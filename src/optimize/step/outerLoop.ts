@@ -21,6 +21,7 @@ import type { Constraint } from '../constraints/constraints.js';
 import { localStep, type InnerAlgorithm } from './localStep.js';
 import { carryMultipliers, QP_TOL, sqpStep, type SqpStepInput } from './sqpStep.js';
 import { escapeSaddle, type EscapeChart } from './saddleEscape.js';
+import { maxAbs } from './interiorQp.js';
 import { SymTriplets } from './sparseLdl.js';
 import { BOUND_METHOD, boundAttained, boundCertificate } from '../certify/bound.js';
 import type { SolveOutcome } from '../run/problem.js';
@@ -340,12 +341,6 @@ function creepingNearBound(history: readonly number[], bound: number, tol: numbe
   const t = history[n - 1]!, gap = bound - t;
   if (!(gap < CREEP_GAP_REL * bound) || !(gap > CREEP_MIN_GAP_TOLS * tol * bound)) return false;
   return t - history[n - 1 - CREEP_WINDOW]! < gap;
-}
-
-function maxAbs(v: ArrayLike<number>): number {
-  let a = 0;
-  for (let i = 0; i < v.length; i++) a = Math.max(a, Math.abs(v[i]!));
-  return a;
 }
 
 /** The active constraints whose force (multiplier) is positive: those an escape keeps touching. */
