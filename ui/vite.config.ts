@@ -60,9 +60,13 @@ function common(): InlineConfig {
     define: { global: 'globalThis', 'process.env.NODE_ENV': '"production"' },
     resolve: {
       alias: [
-        { find: /^node:fs$/, replacement: shim('fs.ts') },
-        { find: /^node:path$/, replacement: shim('path.ts') },
+        // The bare names and node:module come from nlopt-js's UMD bundle and the HiGHS loader, on their
+        // Node-only paths; shimmed rather than left to vite's empty stand-ins, which warn on every build.
+        { find: /^(node:)?fs$/, replacement: shim('fs.ts') },
+        { find: /^(node:)?path$/, replacement: shim('path.ts') },
         { find: /^node:os$/, replacement: shim('os.ts') },
+        { find: /^(node:)?crypto$/, replacement: shim('crypto.ts') },
+        { find: /^node:module$/, replacement: shim('module.ts') },
         { find: /^highs$/, replacement: shim('highs.ts') },
         { find: /^highs-loader$/, replacement: resolve(here, '../node_modules/highs/build/highs.mjs') },
       ],
