@@ -204,7 +204,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   const c = r.certificate;
   lines.push(
     `Certificate: ${c.method}, ${c.certified ? 'certified' : 'NOT certified'}; balance residual ${sci(c.balanceResidual)}, ` +
-      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active strut${c.activeStruts === 1 ? '' : 's'}` +
+      `max violation ${sci(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active constraint${c.activeStruts === 1 ? '' : 's'} weighed` +
         (r.symmetry && r.contacts.length > c.activeStruts ? ` (${r.contacts.length} contacts listed with their images under ${r.symmetry.type}:${r.symmetry.order})` : ''),
   );
   if (c.note) lines.push(`  ${c.note}`);
@@ -229,7 +229,7 @@ export function formatInflate(run: InflateRun, output?: string): string {
   ));
   if (r.contacts.length > 0) {
     lines.push('');
-    lines.push('Contacts (active struts; forces dimensionless, summing to 1)');
+    lines.push('Contacts (active struts and sampled points of contact arcs; forces dimensionless, summing to 1)');
     // A whole circle of contact is carried by many sample points: list those that carry force, count the rest.
     const omitted = new Map<string, number>();
     const rows: string[][] = [];

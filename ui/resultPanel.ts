@@ -18,7 +18,7 @@ export function renderResult(
     ['Tube / core', `${fmt(r.tubeOverCore)} (dimensionless)`, 'tube-over-core'],
     ['Aspect ratio', `${fmt(r.aspectRatio)} (inner diameter / wire diameter, dimensionless, ring ${r.rings.reduce((m, x) => (x.aspectRatio < m.aspectRatio ? x : m), r.rings[0]!).name})`],
     ['Symmetry', r.symmetry ? `${r.symmetry.type}:${r.symmetry.order} imposed` : 'none imposed'],
-    ['Certificate', `${c.method}, ${c.certified ? 'certified' : 'NOT certified'}; balance residual ${fmt(c.balanceResidual)}, max violation ${fmt(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active struts`, 'certificate'],
+    ['Certificate', `${c.method}, ${c.certified ? 'certified' : 'NOT certified'}; balance residual ${fmt(c.balanceResidual)}, max violation ${fmt(c.maxViolation)} of the tube (both dimensionless); ${c.activeStruts} active constraint${c.activeStruts === 1 ? '' : 's'} weighed`, 'certificate'],
   ];
   if (r.bound) {
     rows.push(['Upper bound', `${fmt(r.bound.tube)} ${units} (circle packing, ring ${r.rings[r.bound.ring]?.name ?? r.bound.ring} with ${r.bound.through} through it)`, 'bound']);

@@ -41,6 +41,10 @@ export interface Certificate {
   balanceResidual: number;
   /** Worst constraint violation after polishing, relative to the tube radius. */
   maxViolation: number;
+  /**
+   * Active constraints the certificate weighed: struts, sampled points of contact arcs, and the radius or
+   * departure limit when binding (the note says how many of each). The name predates the samples.
+   */
   activeStruts: number;
   /** True when the balance residual and violation are under tolerance. */
   certified: boolean;
