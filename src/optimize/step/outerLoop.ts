@@ -195,7 +195,7 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
     const chart = loop.chart(state);
     const box = Math.min(delta, cap);
     const cons = chart.constraints(MARGIN_BOXES * box);
-    let step: { ok: boolean; z: Float64Array; tau: number };
+    let step: { ok: boolean; z: Float64Array; tau: number; convexified?: boolean };
     let sqpInput: SqpStepInput | null = null;
     if (loop.stepMethod === 'sqp') {
       const lambda = carried ? carryMultipliers(carried.cons, carried.lambda, cons) : new Float64Array(cons.length);
@@ -211,7 +211,13 @@ export async function runOuterLoop<S extends { t: number }, C extends Constraint
       step = await localStep(cons, chart.nFree, state.t, delta, box, loop.tMax, loop.algorithm, trigger * state.t);
     }
     iterations++;
-    if (!step.ok) {
+    // With a model that is not concave, the QP's interior-point method (its inertia correction) finds a
+    // Kuhn–Tucker point of the QP, not necessarily its maximum, and that point can promise less than staying
+    // put: no ascent step, and no sign of convergence either. It fails like a failed solve, and the smaller Δ
+    // makes P = −W + I/Δ convex. (Seen on the free torus:3: a gain of −1.2e-5 at 1e-3 below R/3 ended the
+    // climb as "converged without a polish".)
+    const noAscent = step.ok && step.convexified === true && step.tau < -SQP_FINAL_GAIN_REL * loop.finalTol * state.t;
+    if (!step.ok || noAscent) {
       failures++;
       delta *= 0.25;
       record();
