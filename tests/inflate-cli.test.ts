@@ -30,6 +30,23 @@ describe('thickring inflate', () => {
     expect(io.stderr.filter((l) => /^start \d/.test(l))).toHaveLength(2);
   });
 
+  it('chain:8 --json: each start keeps its last gains, the last positive steps of its history (text prints them too)', async () => {
+    const { code, io } = await run(['inflate', 'chain:8', '--json', '--starts', '2', '--workers', '1', '--all-starts']);
+    expect(code).toBe(0);
+    const r = JSON.parse(io.stdout[0]!) as SolveResult;
+    // Chain of rings: R/3 (circle-packing bound k = 2, Graham et al. 1998), attained.
+    expect(Math.abs(r.tube - 1 / 3)).toBeLessThan(1e-9);
+    for (const s of r.starts) {
+      // Recomputed here from the history: the increases between outer iterations, rejected steps (no gain) left out.
+      const steps = s.history.slice(1).map((t, k) => t - s.history[k]!).filter((g) => g > 0);
+      expect(s.lastGains).toEqual(steps.slice(-5));
+      expect(s.lastGains!.length).toBeGreaterThan(0);
+    }
+    const text = await run(['inflate', 'chain:8', '--starts', '1']);
+    const line = text.io.stdout.join('\n').split('\n').find((l) => l.startsWith('Last gains of start 0'));
+    expect(line).toMatch(/^Last gains of start 0 \(layout units, oldest first\): (\d\.\de[-+]\d+, ){0,4}\d\.\de[-+]\d+$/);
+  });
+
   it('chain:3 --radii 2 -o: text with units, result file written atomically and readable; tube R/3 = 2/3', async () => {
     const out = join(dir, 'chain.json');
     const { code, io } = await run(['inflate', 'chain:3', '--radii', '2', '--starts', '1', '-o', out]);

@@ -62,6 +62,19 @@ export interface Bound {
   gap: number;
 }
 
+/** How many of the last gains a start record keeps. */
+export const LAST_GAINS_COUNT = 5;
+
+/** The last `count` positive increases of a tube history, oldest first. */
+export function lastGains(history: readonly number[], count = LAST_GAINS_COUNT): number[] {
+  const out: number[] = [];
+  for (let k = history.length - 1; k > 0 && out.length < count; k--) {
+    const gain = history[k]! - history[k - 1]!;
+    if (gain > 0) out.push(gain);
+  }
+  return out.reverse();
+}
+
 export interface StartRecord {
   seed: number;
   status: SolveStatus;
@@ -69,6 +82,12 @@ export interface StartRecord {
   iterations: number;
   /** Tube radius after each outer iteration. */
   history: number[];
+  /**
+   * The last (up to LAST_GAINS_COUNT) increases of the tube between outer iterations, oldest first (layout
+   * units; rejected steps, which gain nothing, are left out): near a regular optimum each is far smaller
+   * than the one before, the sign of superlinear convergence. Absent in files written before it existed.
+   */
+  lastGains?: number[];
   /** Worker crashes survived by this start (WebAssembly aborts). */
   retries: number;
   /** Why this start stopped: 'polished', 'time limit', 'iteration limit', 'solver failure: ...', ... */

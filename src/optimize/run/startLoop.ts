@@ -4,7 +4,7 @@
 // of the result file both fill the same way.
 import { tightestRing } from '../../model/orbit.js';
 import { CLEARANCE_TOLERANCE } from '../../check/verify.js';
-import { RESULT_FORMAT, type Certificate, type ResultRing, type SolveResult, type StartRecord, type Verification } from '../../model/result.js';
+import { lastGains, RESULT_FORMAT, type Certificate, type ResultRing, type SolveResult, type StartRecord, type Verification } from '../../model/result.js';
 import type { Ring, SolveStatus } from '../../model/types.js';
 import { runPool, type Algorithm, type PoolResult, type PoolTask } from './pool.js';
 import type { SolveOutcome } from './problem.js';
@@ -158,6 +158,7 @@ export async function runStarts<O extends SolveOutcome>(
     tube: c.outcome?.tube ?? 0,
     iterations: c.outcome?.iterations ?? 0,
     history: c.outcome?.history ?? [],
+    lastGains: lastGains(c.outcome?.history ?? []),
     retries: c.result.retries,
     stopReason: c.outcome ? stopReasonOf(c.outcome) : `solver failure: ${c.result.errors.at(-1) ?? 'no outcome'}`,
   }));
