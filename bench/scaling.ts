@@ -4,8 +4,8 @@
 //   sqp       the second-order step (step/sqpStep.ts: exact Lagrangian Hessian, sparse interior-point QP).
 // Both finish with the same Newton polish. Seeded, one warm-up solve, median of repeats, a time budget per
 // case (a case over budget is reported as "> budget" with the verified tube the solver reached by its
-// deadline, and left out of the fit; the larger N of that family are not run with that method); the fitted exponent is the least-squares slope of log(time) against
-// log(N) over the cases in budget, and the tail exponent the same over the three largest of them (at small
+// deadline, and left out of the fit; the larger N of that family are not run with that method); the fitted
+// exponent is the least-squares slope of log(time) against log(N) over the cases in budget, and the tail exponent the same over the three largest of them (at small
 // N the fixed costs of a solve flatten the curve, so the full fit mixes two regimes). Every result is
 // re-checked by the independent verifier (verifyOutcome).
 // Run: npm run build && node dist/bench/scaling.js [--max 64] [--repeats 1] [--budget 60] [--methods sqp,proximal] [--json]
@@ -68,7 +68,7 @@ async function solveOnce(spec: string, method: Method): Promise<Cell> {
     const seconds = (performance.now() - t0) / 1000;
     const verified = verifyOutcome(problem, out).ok;
     // Over budget: what the solver had reached when its deadline stopped it (status stalled, time limit).
-    if (seconds > BUDGET_S || out.status !== 'optimal' && /time limit/.test(out.message)) {
+    if (seconds > BUDGET_S || (out.status !== 'optimal' && out.stopReason === 'time limit')) {
       return { seconds: null, iterations: out.iterations, status: `> budget (${out.status})`, tube: out.tube, verified };
     }
     return { seconds, iterations: out.iterations, status: out.status, tube: out.tube, verified };
@@ -76,6 +76,11 @@ async function solveOnce(spec: string, method: Method): Promise<Cell> {
     if (e instanceof OverBudget) return { seconds: null, iterations: 0, status: '> budget (aborted)', tube: NaN, verified: false };
     throw e;
   }
+}
+
+/** The time column: seconds, "> budget" for a case the deadline stopped, "-" for one not run or aborted. */
+function timeText(c: Cell): string {
+  return c.seconds !== null ? `${c.seconds.toFixed(2)} s` : c.iterations > 0 ? `> ${BUDGET_S} s` : '-';
 }
 
 async function measure(spec: string, method: Method): Promise<Cell> {
@@ -118,7 +123,7 @@ async function main(): Promise<void> {
         cells[m] = exhausted.has(m) ? notRun : await measure(spec, m);
         if (cells[m].seconds === null) exhausted.add(m);
         const c = cells[m];
-        process.stderr.write(`${spec} ${m}: ${c.seconds === null ? (c.iterations > 0 ? `> ${BUDGET_S} s` : '-') : `${c.seconds.toFixed(2)} s`}, ${c.iterations} it, ${c.status}, tube ${c.tube}\n`);
+        process.stderr.write(`${spec} ${m}: ${timeText(c)}, ${c.iterations} it, ${c.status}, tube ${c.tube}\n`);
       }
       rows.push({ spec, N, cells });
     }
@@ -135,14 +140,13 @@ async function main(): Promise<void> {
     console.log(JSON.stringify({ seed: SEED, tol: TOL, repeats: REPEATS, budgetSeconds: BUDGET_S, rows, exponents: fits }, null, 2));
     return;
   }
-  const fmt = (c: Cell): string => (c.seconds !== null ? `${c.seconds.toFixed(2)} s` : c.iterations > 0 ? `> ${BUDGET_S} s` : '-');
   console.log(`| case | ${METHODS.map((m) => `${m}: time | it | status | tube/R`).join(' | ')} |`);
   console.log(`| --- |${METHODS.map(() => ' --- | --- | --- | --- |').join('')}`);
   for (const r of rows) {
     const cells = METHODS.map((m) => {
       const c = r.cells[m];
       const checked = c.verified || c.iterations === 0 ? '' : ' (unverified)';
-      return `${fmt(c)} | ${c.iterations || '-'} | ${c.status}${checked} | ${Number.isFinite(c.tube) ? c.tube.toFixed(10) : '-'}`;
+      return `${timeText(c)} | ${c.iterations || '-'} | ${c.status}${checked} | ${Number.isFinite(c.tube) ? c.tube.toFixed(10) : '-'}`;
     });
     console.log(`| ${r.spec} | ${cells.join(' | ')} |`);
   }

@@ -250,11 +250,9 @@ export function formatInflate(run: InflateRun, output?: string): string {
     ['start', 'seed', 'status', `tube (${u})`, 'iterations', 'worker crashes retried'],
     r.starts.map((s, k) => [String(k), String(s.seed), s.status, num(s.tube), String(s.iterations), String(s.retries)]),
   ));
-  const shown = r.starts.find((s) => s.tube === r.tube && s.lastGains && s.lastGains.length > 0);
-  if (shown) {
-    lines.push(
-      `Last gains of start ${r.starts.indexOf(shown)} (${u}, oldest first): ${shown.lastGains!.map((g) => g.toExponential(1)).join(', ')}`,
-    );
+  const shown = r.starts.findIndex((s) => s.tube === r.tube && (s.lastGains?.length ?? 0) > 0);
+  if (shown >= 0) {
+    lines.push(`Last gains of start ${shown} (${u}, oldest first): ${r.starts[shown]!.lastGains!.map((g) => g.toExponential(1)).join(', ')}`);
   }
   lines.push('');
   lines.push(`Elapsed: ${r.elapsedSeconds.toFixed(2)} s`);
